@@ -9,9 +9,10 @@
 #include "common/version.h"
 
 int main(int argc, char** argv) {
-  CLI::App app{"loupe: compare grouped text collections with one shared LDA topic model.\n"
-               "Run `loupe COMMAND --help` for the options of a command.",
-               "loupe"};
+  CLI::App app{
+      "loupe: compare grouped text collections with one shared LDA topic model.\n"
+      "Run `loupe COMMAND --help` for the options of a command.",
+      "loupe"};
   app.set_version_flag("--version", std::string("loupe ") + loupe::kVersion);
   app.require_subcommand(1);
   app.get_formatter()->column_width(32);

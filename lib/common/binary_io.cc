@@ -1,5 +1,6 @@
 #include "common/binary_io.h"
 
+#include <unistd.h>
 #include <cerrno>
 #include <cstdio>
 #include <filesystem>
@@ -7,7 +8,6 @@
 #include <random>
 #include <sstream>
 #include <system_error>
-#include <unistd.h>
 
 #include "common/checksum.h"
 #include "common/error.h"
@@ -52,8 +52,14 @@ void write_file_atomically(const std::string& path, std::string_view contents) {
                 " does not exist. Create it first or choose another output path.");
   }
   std::random_device entropy;
-  const fs::path temporary = folder / ("." + target.filename().string() + ".tmp-" +
-                                       std::to_string(::getpid()) + "-" + std::to_string(entropy()));
+  // Built with += : GCC 12 gives a false -Wrestrict on "." + std::string.
+  std::string name(1, '.');
+  name += target.filename().string();
+  name += ".tmp-";
+  name += std::to_string(::getpid());
+  name += '-';
+  name += std::to_string(entropy());
+  const fs::path temporary = folder / name;
   {
     std::ofstream out(temporary, std::ios::binary | std::ios::trunc);
     if (!out) {
@@ -88,8 +94,7 @@ std::string read_whole_file(const std::string& path) {
   return std::move(buffer).str();
 }
 
-void write_binary_file(const std::string& path, const FileFormat& format,
-                       const std::vector<char>& payload) {
+void write_binary_file(const std::string& path, const FileFormat& format, const std::vector<char>& payload) {
   std::string out;
   out.reserve(kHeaderSize + payload.size() + kTrailerSize);
   out.append(format.magic, 8);
@@ -103,18 +108,18 @@ void write_binary_file(const std::string& path, const FileFormat& format,
   write_file_atomically(path, out);
 }
 
-std::string read_binary_file(const std::string& path, const FileFormat& format,
-                             std::uint32_t* version) {
+std::string read_binary_file(const std::string& path, const FileFormat& format, std::uint32_t* version) {
   std::error_code ec;
   if (!std::filesystem::exists(path, ec)) {
-    throw Error(std::string("cannot read ") + format.kind + " file " + path +
-                ": no such file. Check the path.");
+    throw Error(std::string("cannot read ") + format.kind + " file " + path + ": no such file. Check the path.");
   }
   std::string bytes = read_whole_file(path);
   const std::string kind = format.kind;
   if (bytes.size() < kHeaderSize || std::memcmp(bytes.data(), format.magic, 8) != 0) {
-    throw Error(path + ": not a loupe " + kind + " file (its first bytes do not match). "
-                "Pass a file that loupe wrote as a " + kind + ".");
+    throw Error(path + ": not a loupe " + kind +
+                " file (its first bytes do not match). "
+                "Pass a file that loupe wrote as a " +
+                kind + ".");
   }
   std::uint32_t file_version;
   std::memcpy(&file_version, bytes.data() + 8, sizeof(file_version));
@@ -126,18 +131,18 @@ std::string read_binary_file(const std::string& path, const FileFormat& format,
   std::uint64_t size;
   std::memcpy(&size, bytes.data() + 12, sizeof(size));
   if (bytes.size() < kHeaderSize + kTrailerSize || size != bytes.size() - kHeaderSize - kTrailerSize) {
-    throw Error(path + ": " + kind + " file is truncated or has extra bytes (header says " +
-                std::to_string(size) + " payload bytes, file holds " +
-                std::to_string(bytes.size() >= kHeaderSize + kTrailerSize
-                                   ? bytes.size() - kHeaderSize - kTrailerSize
-                                   : 0) +
-                "). The file is damaged; rebuild it.");
+    throw Error(
+        path + ": " + kind + " file is truncated or has extra bytes (header says " + std::to_string(size) +
+        " payload bytes, file holds " +
+        std::to_string(bytes.size() >= kHeaderSize + kTrailerSize ? bytes.size() - kHeaderSize - kTrailerSize : 0) +
+        "). The file is damaged; rebuild it.");
   }
   std::uint64_t stored;
   std::memcpy(&stored, bytes.data() + kHeaderSize + size, sizeof(stored));
   const std::uint64_t actual = fnv1a64(bytes.data() + kHeaderSize, size);
   if (stored != actual) {
-    throw Error(path + ": " + kind + " file checksum mismatch: the file is corrupted. "
+    throw Error(path + ": " + kind +
+                " file checksum mismatch: the file is corrupted. "
                 "Rebuild it from its sources.");
   }
   *version = file_version;

@@ -50,8 +50,7 @@ class BinaryWriter {
 // throws loupe::Error naming the file and the byte offset.
 class BinaryReader {
  public:
-  BinaryReader(std::string_view bytes, std::string file_name)
-      : bytes_(bytes), file_name_(std::move(file_name)) {}
+  BinaryReader(std::string_view bytes, std::string file_name) : bytes_(bytes), file_name_(std::move(file_name)) {}
 
   template <typename T>
   T get() {
@@ -94,20 +93,18 @@ class BinaryReader {
 };
 
 struct FileFormat {
-  char magic[8];           // e.g. "LOUPECRP"
-  std::uint32_t version;   // the newest version this build writes and reads
-  const char* kind;        // "corpus", "model": used in messages
+  char magic[8];          // e.g. "LOUPECRP"
+  std::uint32_t version;  // the newest version this build writes and reads
+  const char* kind;       // "corpus", "model": used in messages
 };
 
 // Wraps the payload with magic, version and checksum and writes it atomically.
-void write_binary_file(const std::string& path, const FileFormat& format,
-                       const std::vector<char>& payload);
+void write_binary_file(const std::string& path, const FileFormat& format, const std::vector<char>& payload);
 
 // Reads and verifies a file written by write_binary_file. Returns the payload
 // and sets *version. Throws loupe::Error for a missing file, a wrong magic, a
 // newer version, a truncated file or a checksum mismatch.
-std::string read_binary_file(const std::string& path, const FileFormat& format,
-                             std::uint32_t* version);
+std::string read_binary_file(const std::string& path, const FileFormat& format, std::uint32_t* version);
 
 // Writes text to PATH via a temporary file in the same folder and a rename.
 void write_file_atomically(const std::string& path, std::string_view contents);

@@ -33,7 +33,8 @@ void Corpus::validate(const std::string& where) const {
   const auto v = vocabulary.size();
   if (word_frequency.size() != v || document_frequency.size() != v) fail("vocabulary tables differ in size");
   if (token_offsets.size() != documents.size() + 1) fail("document offsets do not match the documents");
-  if (token_offsets.front() != 0 || token_offsets.back() != tokens.size()) fail("document offsets do not cover the tokens");
+  if (token_offsets.front() != 0 || token_offsets.back() != tokens.size())
+    fail("document offsets do not cover the tokens");
   for (std::size_t d = 0; d + 1 < token_offsets.size(); ++d) {
     if (token_offsets[d] > token_offsets[d + 1]) fail("document offsets decrease at document " + std::to_string(d));
   }
@@ -42,7 +43,8 @@ void Corpus::validate(const std::string& where) const {
   }
   for (const auto& doc : documents) {
     if (doc.group != kNoGroup && doc.group >= groups.size()) fail("document " + doc.id + " has an unknown group");
-    if (doc.metadata.size() != metadata_columns.size()) fail("document " + doc.id + " has the wrong number of metadata fields");
+    if (doc.metadata.size() != metadata_columns.size())
+      fail("document " + doc.id + " has the wrong number of metadata fields");
   }
 }
 

@@ -18,10 +18,10 @@ using WordId = std::uint32_t;
 inline constexpr std::uint32_t kNoGroup = std::numeric_limits<std::uint32_t>::max();
 
 struct Document {
-  std::string id;                        // unique within the corpus
-  std::uint32_t group = kNoGroup;        // index into Corpus::groups, kNoGroup when none
+  std::string id;                  // unique within the corpus
+  std::uint32_t group = kNoGroup;  // index into Corpus::groups, kNoGroup when none
   DocumentRole role = DocumentRole::known;
-  std::vector<std::string> metadata;     // aligned with Corpus::metadata_columns
+  std::vector<std::string> metadata;  // aligned with Corpus::metadata_columns
   // Segments: a long source document split into consecutive pieces. For a
   // segment, parent_id names the source document, segment_index is its place
   // (0-based) among segment_count pieces, and first_token is the position of its

@@ -10,9 +10,7 @@ namespace loupe {
 
 enum class DocumentRole : unsigned char { known = 0, disputed = 1 };
 
-inline const char* role_name(DocumentRole role) {
-  return role == DocumentRole::known ? "known" : "disputed";
-}
+inline const char* role_name(DocumentRole role) { return role == DocumentRole::known ? "known" : "disputed"; }
 
 // "known" / "disputed" (case-insensitive, surrounding spaces ignored); an empty
 // value means known. Returns nullopt for anything else.
