@@ -29,6 +29,10 @@ std::optional<Utf8Problem> find_invalid_utf8(std::string_view bytes);
 // Example: "a\xF1\x80\x80\xE1\x80\xC2" "b" -> "a\uFFFD\uFFFD\uFFFDb", 3 replaced.
 std::string replace_invalid_utf8(std::string_view bytes, std::size_t* replaced);
 
+// Appends the UTF-8 encoding of code point C (at most U+10FFFF) to OUT.
+// Example: 0x20AC -> "\xE2\x82\xAC" (the euro sign).
+void append_utf8(std::string& out, char32_t c);
+
 // BYTES without a leading UTF-8 byte order mark (EF BB BF), if it has one.
 std::string_view strip_utf8_bom(std::string_view bytes);
 

@@ -7,6 +7,7 @@
 #include "cli/run_command.h"
 #include "common/version.h"
 #include "corpus/corpus_file.h"
+#include "support/temp_folder.h"
 
 namespace loupe {
 namespace {
@@ -21,15 +22,9 @@ const std::string kDemo = std::string(LOUPE_SOURCE_DIR) + "/demo/harbour-letters
 
 class IngestCliTest : public ::testing::Test {
  protected:
-  void SetUp() override {
-    dir_ = fs::temp_directory_path() / ("loupe-cli-" + std::to_string(::getpid()) + "-" +
-                                        ::testing::UnitTest::GetInstance()->current_test_info()->name());
-    fs::remove_all(dir_);
-    fs::create_directories(dir_);
-  }
-  void TearDown() override { fs::remove_all(dir_); }
   std::string path(const std::string& name) const { return (dir_ / name).string(); }
-  fs::path dir_;
+  loupe::testing::TempFolder folder_{"cli"};
+  const fs::path& dir_ = folder_.path();
 };
 
 TEST_F(IngestCliTest, HelpListsCommandsWithExamplesAndVersionPrints) {

@@ -8,6 +8,7 @@
 #include <gtest/gtest.h>
 
 #include "common/error.h"
+#include "support/temp_folder.h"
 
 namespace loupe {
 namespace {
@@ -19,11 +20,6 @@ constexpr FileFormat kTestFormat{{'L', 'O', 'U', 'P', 'E', 'T', 'S', 'T'}, 2, "t
 
 class BinaryIoTest : public ::testing::Test {
  protected:
-  void SetUp() override {
-    dir_ = fs::temp_directory_path() / ("loupe-binary-io-" + std::to_string(::getpid()));
-    fs::create_directories(dir_);
-  }
-  void TearDown() override { fs::remove_all(dir_); }
   std::string path(const std::string& name) const { return (dir_ / name).string(); }
   static std::vector<char> payload() {
     BinaryWriter w;
@@ -33,7 +29,8 @@ class BinaryIoTest : public ::testing::Test {
     w.put_strings({"a", "", "ccc"});
     return w.bytes();
   }
-  fs::path dir_;
+  loupe::testing::TempFolder folder_{"binary-io"};
+  const fs::path& dir_ = folder_.path();
 };
 
 TEST_F(BinaryIoTest, RoundTripsValues) {

@@ -2,7 +2,6 @@
 #include "corpus/corpus_builder.h"
 
 #include <filesystem>
-#include <fstream>
 
 #include <gmock/gmock.h>
 #include <gtest/gtest.h>
@@ -10,6 +9,7 @@
 #include "common/binary_io.h"
 #include "common/error.h"
 #include "corpus/corpus_file.h"
+#include "support/temp_folder.h"
 
 namespace loupe {
 namespace {
@@ -21,19 +21,8 @@ using ::testing::ThrowsMessage;
 
 class CorpusBuilderTest : public ::testing::Test {
  protected:
-  void SetUp() override {
-    root_ = fs::temp_directory_path() / ("loupe-builder-" + std::to_string(::getpid()) + "-" +
-                                         ::testing::UnitTest::GetInstance()->current_test_info()->name());
-    fs::remove_all(root_);
-    fs::create_directories(root_);
-  }
-  void TearDown() override { fs::remove_all(root_); }
-  void write(const std::string& relative, const std::string& text) {
-    const fs::path p = root_ / relative;
-    fs::create_directories(p.parent_path());
-    std::ofstream(p, std::ios::binary) << text;
-  }
-  std::string root() const { return root_.string(); }
+  void write(const std::string& relative, const std::string& text) { folder_.write(relative, text); }
+  std::string root() const { return folder_.str(); }
   static IngestOptions loose() {
     IngestOptions o;
     o.min_documents = 1;
@@ -50,7 +39,8 @@ class CorpusBuilderTest : public ::testing::Test {
     ADD_FAILURE() << "no document " << id;
     return 0;
   }
-  fs::path root_;
+  loupe::testing::TempFolder folder_{"builder"};
+  const fs::path& root_ = folder_.path();
 };
 
 TEST_F(CorpusBuilderTest, FolderSourceGivesGroupsRolesAndFoldedWords) {

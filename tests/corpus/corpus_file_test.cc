@@ -9,6 +9,7 @@
 
 #include "common/binary_io.h"
 #include "common/error.h"
+#include "support/temp_folder.h"
 
 namespace loupe {
 namespace {
@@ -35,13 +36,9 @@ Corpus small_corpus() {
 
 class CorpusFileTest : public ::testing::Test {
  protected:
-  void SetUp() override {
-    dir_ = fs::temp_directory_path() / ("loupe-corpus-file-" + std::to_string(::getpid()));
-    fs::create_directories(dir_);
-  }
-  void TearDown() override { fs::remove_all(dir_); }
   std::string path(const std::string& name) const { return (dir_ / name).string(); }
-  fs::path dir_;
+  loupe::testing::TempFolder folder_{"corpus-file"};
+  const fs::path& dir_ = folder_.path();
 };
 
 TEST_F(CorpusFileTest, RoundTripKeepsEverything) {

@@ -12,6 +12,7 @@
 #include "common/error.h"
 #include "corpus/source_listing.h"
 #include "corpus/source_utf8.h"
+#include "support/temp_folder.h"
 
 namespace loupe {
 namespace {
@@ -42,26 +43,7 @@ std::vector<std::string> ids_of(const SourceListing& listing) {
   return ids;
 }
 
-class TempFolder {
- public:
-  TempFolder() {
-    static int counter = 0;
-    path_ = fs::temp_directory_path() / ("loupe-folder-test-" + std::to_string(reinterpret_cast<std::uintptr_t>(this)) +
-                                         "-" + std::to_string(counter++));
-    fs::remove_all(path_);
-    fs::create_directories(path_);
-  }
-  ~TempFolder() { fs::remove_all(path_); }
-  void write(const std::string& name, const std::string& contents) const {
-    const fs::path file = path_ / name;
-    fs::create_directories(file.parent_path());
-    std::ofstream(file, std::ios::binary) << contents;
-  }
-  std::string str() const { return path_.string(); }
-
- private:
-  fs::path path_;
-};
+using TempFolder = loupe::testing::TempFolder;
 
 TEST(FolderSource, ListsGroupsAndDisputedSortedByGroupThenFile) {
   const SourceListing listing = list_sources(kFolder);

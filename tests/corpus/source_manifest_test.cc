@@ -12,6 +12,7 @@
 #include "common/error.h"
 #include "corpus/source_listing.h"
 #include "corpus/source_manifest.h"
+#include "support/temp_folder.h"
 
 namespace loupe {
 namespace {
@@ -43,28 +44,7 @@ std::vector<std::string> ids_of(const SourceListing& listing) {
 }
 
 // A fresh folder under the system's temporary folder, removed at the end.
-class TempFolder {
- public:
-  TempFolder() {
-    static int counter = 0;
-    path_ = fs::temp_directory_path() /
-            ("loupe-source-test-" + std::to_string(::testing::UnitTest::GetInstance()->random_seed()) + "-" +
-             std::to_string(reinterpret_cast<std::uintptr_t>(this)) + "-" + std::to_string(counter++));
-    fs::remove_all(path_);
-    fs::create_directories(path_);
-  }
-  ~TempFolder() { fs::remove_all(path_); }
-  std::string write(const std::string& name, const std::string& contents) const {
-    const fs::path file = path_ / name;
-    fs::create_directories(file.parent_path());
-    std::ofstream(file, std::ios::binary) << contents;
-    return file.string();
-  }
-  const fs::path& path() const { return path_; }
-
- private:
-  fs::path path_;
-};
+using TempFolder = loupe::testing::TempFolder;
 
 // ---- happy paths ----------------------------------------------------------
 

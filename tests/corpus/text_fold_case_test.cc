@@ -13,6 +13,7 @@
 #include <unordered_set>
 #include <vector>
 
+#include "common/utf8.h"
 #include "corpus/text_tokenizer.h"
 
 namespace loupe {
@@ -20,24 +21,6 @@ namespace {
 
 constexpr const char* kDerivedNormalizationProps = "/usr/share/unicode/DerivedNormalizationProps.txt";
 constexpr const char* kCaseFolding = "/usr/share/unicode/CaseFolding.txt";
-
-void append_utf8(std::string& out, std::uint32_t c) {
-  if (c < 0x80) {
-    out += static_cast<char>(c);
-  } else if (c < 0x800) {
-    out += static_cast<char>(0xC0 | (c >> 6));
-    out += static_cast<char>(0x80 | (c & 0x3F));
-  } else if (c < 0x10000) {
-    out += static_cast<char>(0xE0 | (c >> 12));
-    out += static_cast<char>(0x80 | ((c >> 6) & 0x3F));
-    out += static_cast<char>(0x80 | (c & 0x3F));
-  } else {
-    out += static_cast<char>(0xF0 | (c >> 18));
-    out += static_cast<char>(0x80 | ((c >> 12) & 0x3F));
-    out += static_cast<char>(0x80 | ((c >> 6) & 0x3F));
-    out += static_cast<char>(0x80 | (c & 0x3F));
-  }
-}
 
 std::string utf8_of(std::uint32_t c) {
   std::string out;
