@@ -24,6 +24,7 @@ demo: build
 	./$(BUILD)/apps/loupe demo --output-dir $(BUILD)/demo-study
 
 test: build
+	./scripts/fetch-test-data.sh
 	cd $(BUILD) && ctest --output-on-failure -j$(JOBS) --timeout 900
 
 # Unit and end-to-end tests under AddressSanitizer and UndefinedBehaviorSanitizer

@@ -14,6 +14,12 @@ const std::vector<AddCommand>& command_registry();
 
 // Commands (one file each).
 void add_ingest_command(CLI::App& app);
+void add_fit_command(CLI::App& app);
+void add_topics_command(CLI::App& app);
+void add_export_command(CLI::App& app);
 void add_demo_command(CLI::App& app);
+void add_compare_command(CLI::App& app);
+void add_graph_command(CLI::App& app);
+void add_near_duplicates_command(CLI::App& app);
 
 }  // namespace loupe::cli

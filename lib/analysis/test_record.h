@@ -1,0 +1,83 @@
+// One record per test, the shape permutation-test results are read in: method,
+// statistic, sample size, groups, effect size, p-value, permutations, strata,
+// seed and chain. JSON and CSV writers, and the summary of one test across chains.
+#pragma once
+
+#include <cstddef>
+#include <cstdint>
+#include <limits>
+#include <span>
+#include <string>
+#include <vector>
+
+#include <nlohmann/json.hpp>
+
+namespace loupe {
+
+inline constexpr double kNotAvailable = std::numeric_limits<double>::quiet_NaN();
+
+struct TestRecord {
+  std::string method;          // "PERMANOVA", "PERMDISP", "ANOSIM", "pairwise PERMANOVA", ...
+  std::string statistic_name;  // "pseudo-F", "F", "R", "Hellinger distance", ...
+  std::string comparison;      // "all groups", "A vs B", "A vs rest"
+  int topic = -1;              // the topic, for per-topic tests; -1 otherwise
+  std::size_t sample_size = 0;
+  std::size_t num_groups = 0;
+  double statistic = kNotAvailable;
+  std::string effect_size_name;  // "R²", "difference in mean share", ...
+  double effect_size = kNotAvailable;
+  double interval_low = kNotAvailable;  // 95% bootstrap interval of the effect, when it has one
+  double interval_high = kNotAvailable;
+  double p_value = kNotAvailable;
+  double adjusted_p_value = kNotAvailable;  // q-value (BH) or Holm-adjusted p
+  std::string adjustment;                   // "BH", "Holm" or ""
+  std::size_t permutations = 0;
+  bool complete_enumeration = false;
+  std::string strata;  // the metadata column permutations were restricted by; "" = free
+  std::uint64_t seed = 0;
+  int chain = 0;
+  std::string warning;  // plain-language caution, "" when none
+};
+
+// NaN becomes null.
+nlohmann::json to_json(const TestRecord& record);
+nlohmann::json to_json(std::span<const TestRecord> records);
+
+// CSV with a header line; numbers in shortest round-trip form, NaN as an empty field.
+std::string csv_header();
+std::string csv_row(const TestRecord& record);
+std::string to_csv(std::span<const TestRecord> records);
+// Atomic writes (common/binary_io.h).
+void write_records_json(const std::string& path, std::span<const TestRecord> records);
+void write_records_csv(const std::string& path, std::span<const TestRecord> records);
+
+// "1.25", "0.001", "1e-12": the shortest text that reads back as the same double; "" for NaN.
+std::string format_number(double value);
+// A CSV field, quoted when it holds a comma, quote or line break.
+std::string csv_field(const std::string& text);
+
+// One test's figure across chains.
+struct Spread {
+  double median = kNotAvailable;
+  double min = kNotAvailable;
+  double max = kNotAvailable;
+};
+// Median, minimum and maximum of the finite values; all NaN when none is finite.
+Spread spread_of(std::span<const double> values);
+
+struct ChainSummary {
+  std::string method, statistic_name, comparison;
+  int topic = -1;
+  std::size_t chains = 0;
+  Spread statistic, effect_size, p_value, adjusted_p_value;
+};
+
+// Summarises one record per chain of the same test. Throws loupe::Error when
+// the records are of different tests, or when a chain appears twice.
+ChainSummary summarize_chains(std::span<const TestRecord> one_per_chain);
+// Groups records by test (method, statistic, comparison, topic) in order of
+// first appearance and summarises each group.
+std::vector<ChainSummary> summarize_by_test(std::span<const TestRecord> records);
+nlohmann::json to_json(const ChainSummary& summary);
+
+}  // namespace loupe
