@@ -113,7 +113,7 @@ void print_tables(const GroupComparison& comparison, const Model& model, const C
   }
   std::sort(distinctive.begin(), distinctive.end(),
             [](const TestRecord* a, const TestRecord* b) { return a->statistic > b->statistic; });
-  out << "\nDistinctive topics, chain 0: more common in a group than in the rest (q <= 0.05)\n";
+  out << "\nDistinctive topics, chain 1: more common in a group than in the rest (q <= 0.05)\n";
   if (distinctive.empty()) {
     out << "  none\n";
   } else {
@@ -127,7 +127,7 @@ void print_tables(const GroupComparison& comparison, const Model& model, const C
         words += (words.empty() ? "" : " ") + model.vocabulary[word];
       }
       std::string group = r.comparison.substr(0, r.comparison.size() - std::string(" vs rest").size());
-      out << padded(group, 22) << padded(std::to_string(r.topic), 7)
+      out << padded(group, 22) << padded(std::to_string(r.topic + 1), 7)
           << padded("+" + number(r.statistic, 2) + " (" + number(r.interval_low, 2) + " to " +
                         number(r.interval_high, 2) + ")",
                     30)

@@ -34,7 +34,7 @@ struct GraphArguments {
   double max_distance = 0;
   bool threshold_graph = false;  // --max-distance given: threshold graph instead of kNN
   bool mutual = false;
-  std::size_t chain = 0;
+  std::size_t chain = 1;  // numbered from 1, as `loupe topics` shows chains
   std::size_t permutations = 999;
   std::uint64_t seed = 1;
   std::string strata;
@@ -66,7 +66,7 @@ std::string describe_construction(const GraphArguments& a) {
 }
 
 nlohmann::json chain_json(const ChainResult& r, const DocumentTable& table) {
-  nlohmann::json j = {{"chain", r.chain},
+  nlohmann::json j = {{"chain", r.chain + 1},
                       {"edges", r.edges},
                       {"components", r.components},
                       {"largest_component", r.largest_component},
@@ -105,9 +105,9 @@ void run_graph(GraphArguments& a) {
   }
   const Model model = read_model(a.model);
   if (model.chains.empty()) throw Error(a.model + ": the model holds no chains. Fit it again.");
-  if (a.chain >= model.chains.size()) {
+  if (a.chain < 1 || a.chain > model.chains.size()) {
     throw Error("--chain " + std::to_string(a.chain) + ": the model has " + std::to_string(model.chains.size()) +
-                " chain(s), numbered from 0.");
+                " chain(s), numbered from 1.");
   }
   if (model.num_documents() < 2) {
     throw Error(a.model + ": the model holds " + std::to_string(model.num_documents()) +
@@ -178,7 +178,7 @@ void run_graph(GraphArguments& a) {
       r.tested = true;
     }
     results.push_back(std::move(r));
-    if (c == a.chain) exported = std::move(graph);
+    if (c + 1 == a.chain) exported = std::move(graph);
   }
 
   const std::size_t n = boost::num_vertices(exported);
@@ -201,7 +201,7 @@ void run_graph(GraphArguments& a) {
       for (std::size_t v = 0; v < n; ++v)
         labels[v] = groups[v] == kNoGroup ? static_cast<std::uint32_t>(table.groups.size()) : groups[v];
     } else {
-      labels = results[a.chain].louvain.community;
+      labels = results[a.chain - 1].louvain.community;
     }
     SummaryGraph summary = summary_graph(exported, labels, names);
     layout_summary_graph(summary, layout);
@@ -238,7 +238,7 @@ void run_graph(GraphArguments& a) {
       for (const auto& r : results) {
         if (!r.tested) continue;
         for (const PermutationTest* t : {&r.mixing.modularity, &r.mixing.same_group_share}) {
-          out += std::to_string(r.chain) + "," + csv_cell(t->method) + "," + csv_cell(t->statistic_name) + "," +
+          out += std::to_string(r.chain + 1) + "," + csv_cell(t->method) + "," + csv_cell(t->statistic_name) + "," +
                  std::to_string(t->sample_size) + "," + std::to_string(t->groups) + "," +
                  nlohmann::json(t->statistic).dump() + "," + nlohmann::json(t->null_mean).dump() + "," +
                  nlohmann::json(t->null_sd).dump() + "," + nlohmann::json(t->effect).dump() + "," +
@@ -255,7 +255,7 @@ void run_graph(GraphArguments& a) {
             << ", edge weight 1 - Hellinger\n";
   std::cout << std::fixed << std::setprecision(3);
   for (const auto& r : results) {
-    std::cout << "  chain " << r.chain << ": " << format_count(r.edges) << " edges, " << r.components
+    std::cout << "  chain " << r.chain + 1 << ": " << format_count(r.edges) << " edges, " << r.components
               << " component(s) (largest " << r.largest_component << ", " << r.isolated << " isolated), "
               << r.louvain.num_communities << " Louvain communities (Q = " << r.louvain.modularity << ")\n";
     if (r.tested) {

@@ -34,7 +34,7 @@ namespace {
 struct NearDuplicateArguments {
   std::string corpus;
   std::string model;
-  std::size_t chain = 0;
+  std::size_t chain = 1;  // numbered from 1, as `loupe topics` shows chains
   std::string json;
   std::string csv;
   std::size_t show = 20;
@@ -51,9 +51,9 @@ void run_near_duplicates(NearDuplicateArguments& a) {
   if (with_model) {
     model = read_model(a.model);
     check_model_matches(model, corpus, a.corpus);
-    if (a.chain >= model.chains.size()) {
+    if (a.chain < 1 || a.chain > model.chains.size()) {
       throw Error("--chain " + std::to_string(a.chain) + ": the model has " + std::to_string(model.chains.size()) +
-                  " chain(s), numbered from 0.");
+                  " chain(s), numbered from 1.");
     }
   }
   ProgressBar bar("near-duplicates", a.quiet);
@@ -62,7 +62,7 @@ void run_near_duplicates(NearDuplicateArguments& a) {
   };
   NearDuplicateResult result = find_near_duplicates(corpus, a.options);
   bar.finish();
-  if (with_model) add_topic_distances(result, chain_profiles(model, a.chain));
+  if (with_model) add_topic_distances(result, chain_profiles(model, a.chain - 1));
 
   if (!a.json.empty()) {
     nlohmann::json json = near_duplicates_json(result, corpus);

@@ -91,7 +91,7 @@ nlohmann::json to_json(const GroupComparison& comparison) {
   for (const auto& chain : comparison.chains) {
     auto extra = nlohmann::json::array();
     for (const double v : chain.mean_distance_to_centroid) extra.push_back(v);
-    chains.push_back({{"chain", chain.chain},
+    chains.push_back({{"chain", chain.chain + 1},
                       {"profiles", to_json(chain.profiles)},
                       {"mean_distance_to_centroid", extra},
                       {"records", to_json(chain.records)}});

@@ -131,7 +131,7 @@ nlohmann::json to_json(const GroupProfiles& profiles) {
           {"weighted_by_length", profiles.weighted},
           {"bootstrap_replicates", profiles.replicates},
           {"seed", profiles.seed},
-          {"chain", profiles.chain}};
+          {"chain", profiles.chain + 1}};
 }
 
 std::string to_csv(const GroupProfiles& profiles) {
@@ -139,11 +139,11 @@ std::string to_csv(const GroupProfiles& profiles) {
       "group,topic,documents,total_weight,mean,interval_low,interval_high,level,weighted,replicates,seed,chain\n";
   for (const auto& g : profiles.groups) {
     for (std::size_t k = 0; k < g.mean.size(); ++k) {
-      out += csv_field(g.group) + "," + std::to_string(k) + "," + std::to_string(g.documents) + "," +
+      out += csv_field(g.group) + "," + std::to_string(k + 1) + "," + std::to_string(g.documents) + "," +
              format_number(g.total_weight) + "," + format_number(g.mean[k]) + "," + format_number(g.interval_low[k]) +
              "," + format_number(g.interval_high[k]) + "," + format_number(profiles.level) + "," +
              (profiles.weighted ? "true" : "false") + "," + std::to_string(profiles.replicates) + "," +
-             std::to_string(profiles.seed) + "," + std::to_string(profiles.chain) + "\n";
+             std::to_string(profiles.seed) + "," + std::to_string(profiles.chain + 1) + "\n";
     }
   }
   return out;

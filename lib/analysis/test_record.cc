@@ -47,11 +47,13 @@ std::string csv_field(const std::string& text) {
   return out;
 }
 
+// In files and tables chains and topics are numbered from 1, as `loupe topics`
+// shows them; in memory they are 0-based indices.
 nlohmann::json to_json(const TestRecord& r) {
   return {{"method", r.method},
           {"statistic_name", r.statistic_name},
           {"comparison", r.comparison},
-          {"topic", r.topic < 0 ? nlohmann::json(nullptr) : nlohmann::json(r.topic)},
+          {"topic", r.topic < 0 ? nlohmann::json(nullptr) : nlohmann::json(r.topic + 1)},
           {"sample_size", r.sample_size},
           {"groups", r.num_groups},
           {"statistic", number_or_null(r.statistic)},
@@ -66,7 +68,7 @@ nlohmann::json to_json(const TestRecord& r) {
           {"complete_enumeration", r.complete_enumeration},
           {"strata", r.strata},
           {"seed", r.seed},
-          {"chain", r.chain},
+          {"chain", r.chain + 1},
           {"warning", r.warning}};
 }
 
@@ -92,7 +94,7 @@ std::string csv_row(const TestRecord& r) {
   row = csv_field(r.method);
   add(csv_field(r.statistic_name));
   add(csv_field(r.comparison));
-  add(r.topic < 0 ? "" : std::to_string(r.topic));
+  add(r.topic < 0 ? "" : std::to_string(r.topic + 1));
   add(std::to_string(r.sample_size));
   add(std::to_string(r.num_groups));
   add(format_number(r.statistic));
@@ -107,7 +109,7 @@ std::string csv_row(const TestRecord& r) {
   add(r.complete_enumeration ? "true" : "false");
   add(csv_field(r.strata));
   add(std::to_string(r.seed));
-  add(std::to_string(r.chain));
+  add(std::to_string(r.chain + 1));
   add(csv_field(r.warning));
   return row;
 }
@@ -188,7 +190,7 @@ nlohmann::json to_json(const ChainSummary& s) {
   return {{"method", s.method},
           {"statistic_name", s.statistic_name},
           {"comparison", s.comparison},
-          {"topic", s.topic < 0 ? nlohmann::json(nullptr) : nlohmann::json(s.topic)},
+          {"topic", s.topic < 0 ? nlohmann::json(nullptr) : nlohmann::json(s.topic + 1)},
           {"chains", s.chains},
           {"statistic", spread_json(s.statistic)},
           {"effect_size", spread_json(s.effect_size)},

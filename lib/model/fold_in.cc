@@ -1,6 +1,7 @@
 #include "model/fold_in.h"
 
 #include <numeric>
+#include <unordered_map>
 
 #include "common/error.h"
 #include "model/random.h"
@@ -90,6 +91,38 @@ std::vector<double> fold_in_documents(const TopicWordTable& phi, std::span<const
   runner.run(documents.size(), [&](std::size_t i) {
     const std::size_t d = documents[i];
     const auto row = fold_in_document(phi, alpha, corpus.document_tokens(d), options, derive_seed(options.seed, {d}));
+    std::copy(row.begin(), row.end(), theta.begin() + static_cast<std::ptrdiff_t>(i * k));
+  });
+  return theta;
+}
+
+std::vector<double> fold_in_with_model(const Model& model, std::size_t chain, const Corpus& corpus,
+                                       std::span<const std::size_t> documents, const FoldInOptions& options,
+                                       const ParallelRunner& runner) {
+  if (chain >= model.chains.size()) {
+    throw Error("fold-in: the model has " + std::to_string(model.chains.size()) + " chains, not " +
+                std::to_string(chain + 1));
+  }
+  const std::uint32_t k = model.num_topics();
+  const TopicWordTable phi(model.chains[chain].phi, k, static_cast<std::uint32_t>(model.vocabulary_size()));
+  // The corpus's word ids in the model's vocabulary (or none).
+  constexpr WordId kUnknown = static_cast<WordId>(-1);
+  std::unordered_map<std::string_view, WordId> model_ids;
+  for (std::size_t w = 0; w < model.vocabulary.size(); ++w)
+    model_ids.emplace(model.vocabulary[w], static_cast<WordId>(w));
+  std::vector<WordId> to_model(corpus.vocabulary_size(), kUnknown);
+  for (std::size_t w = 0; w < corpus.vocabulary_size(); ++w) {
+    const auto found = model_ids.find(corpus.vocabulary[w]);
+    if (found != model_ids.end()) to_model[w] = found->second;
+  }
+  std::vector<double> theta(documents.size() * k);
+  runner.run(documents.size(), [&](std::size_t i) {
+    const std::size_t d = documents[i];
+    std::vector<WordId> words;
+    for (const auto w : corpus.document_tokens(d)) {
+      if (to_model[w] != kUnknown) words.push_back(to_model[w]);
+    }
+    const auto row = fold_in_document(phi, model.chains[chain].alpha, words, options, derive_seed(options.seed, {d}));
     std::copy(row.begin(), row.end(), theta.begin() + static_cast<std::ptrdiff_t>(i * k));
   });
   return theta;

@@ -10,6 +10,7 @@
 #include <vector>
 
 #include "corpus/corpus.h"
+#include "model/model.h"
 #include "model/parallel_runner.h"
 
 namespace loupe {
@@ -46,5 +47,13 @@ std::vector<double> fold_in_document(const TopicWordTable& phi, std::span<const 
 std::vector<double> fold_in_documents(const TopicWordTable& phi, std::span<const double> alpha, const Corpus& corpus,
                                       std::span<const std::size_t> documents, const FoldInOptions& options,
                                       const ParallelRunner& runner);
+
+// theta under chain `chain` of `model` (its phi and final alpha) for documents
+// of any corpus: words are matched to the model's vocabulary by their text,
+// and words the model does not know are left out. Row i is documents[i].
+// Example: a disputed letter ingested later, scored against a fitted model.
+std::vector<double> fold_in_with_model(const Model& model, std::size_t chain, const Corpus& corpus,
+                                       std::span<const std::size_t> documents, const FoldInOptions& options,
+                                       const ParallelRunner& runner);
 
 }  // namespace loupe

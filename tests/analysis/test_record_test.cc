@@ -39,7 +39,7 @@ TEST(TestRecordTest, JsonHasEveryFieldAndNullForMissingNumbers) {
   EXPECT_TRUE(json["adjusted_p_value"].is_null());
   EXPECT_TRUE(json["topic"].is_null());
   EXPECT_EQ(json["seed"].get<std::uint64_t>(), 18446744073709551615ULL);
-  EXPECT_EQ(json["chain"], 2);
+  EXPECT_EQ(json["chain"], 3);  // files number chains from 1; index 2 is the third
   EXPECT_EQ(json["strata"], "decade");
 }
 
@@ -49,7 +49,7 @@ TEST(TestRecordTest, CsvQuotesTextAndWritesShortestNumbers) {
   const std::string row = csv_row(r);
   EXPECT_EQ(row,
             "PERMANOVA,pseudo-F,\"Letters, \"\"private\"\" vs rest\",,120,3,0.1,R²,0.001,,,0.25,,,999,false,decade,"
-            "18446744073709551615,0,");
+            "18446744073709551615,1,");  // chain index 0 is written as chain 1
   // Same number of fields as the header (the quoted comma does not count).
   const std::string header = csv_header();
   EXPECT_EQ(std::count(header.begin(), header.end(), ','), 19);

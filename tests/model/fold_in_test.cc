@@ -4,6 +4,7 @@
 #include <gtest/gtest.h>
 
 #include "common/error.h"
+#include "model/fit.h"
 #include "model/fold_in.h"
 #include "model/random.h"
 #include "model/synthetic_corpus.h"
@@ -71,6 +72,45 @@ TEST(FoldInTest, ManyDocumentsAreRepeatableAndIndependentOfThreads) {
   EXPECT_EQ(largest(1), 3);
   EXPECT_GT(one[0 * 6 + 0], 0.5);
   EXPECT_GT(one[1 * 6 + 3], 0.5);
+}
+
+TEST(FoldInTest, WithAModelMatchesWordsByTextAndDropsUnknownOnes) {
+  // Fit the bars, then fold in a document from a corpus with its own
+  // vocabulary order and a word the model never saw.
+  SyntheticCorpusSpec spec;
+  spec.num_topics = 10;
+  spec.vocabulary_size = 25;
+  spec.topics = bars_topics(5);
+  spec.num_documents = 400;
+  spec.seed = 3;
+  const auto sample = draw_lda_corpus(spec);
+  FitOptions options;
+  options.num_topics = 10;
+  options.sweeps = 60;
+  options.burn_in = 20;
+  options.samples = 2;
+  options.sample_lag = 5;
+  options.alpha = {0.5};
+  const Model model = fit_model(sample.corpus, options);
+  // The fitted topic that holds word "w000003" most: row 0 or column 3.
+  Corpus other;
+  other.vocabulary = {"never-seen", "w000003"};
+  other.word_frequency = {1, 6};
+  other.document_frequency = {1, 1};
+  Document doc;
+  doc.id = "disputed";
+  other.add_document(doc, std::vector<WordId>{1, 0, 1, 1, 1, 1, 1});
+  const std::vector<std::size_t> documents{0};
+  const auto theta = fold_in_with_model(model, 0, other, documents, FoldInOptions{}, ParallelRunner(1));
+  ASSERT_EQ(theta.size(), 10U);
+  // Only word 3 counts: the two bars through it share almost all the mass.
+  std::vector<double> sorted = theta;
+  std::sort(sorted.rbegin(), sorted.rend());
+  EXPECT_GT(sorted[0] + sorted[1], 0.8);
+  const auto phi_of_word = [&](std::size_t t) { return model.phi(0, t)[3]; };
+  const auto best = static_cast<std::size_t>(std::max_element(theta.begin(), theta.end()) - theta.begin());
+  EXPECT_GT(phi_of_word(best), 0.1);
+  EXPECT_THROW(fold_in_with_model(model, 1, other, documents, FoldInOptions{}, ParallelRunner(1)), Error);
 }
 
 }  // namespace
