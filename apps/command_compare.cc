@@ -6,7 +6,6 @@
 #include <cstdio>
 #include <iostream>
 #include <memory>
-#include <thread>
 
 #include "analysis/group_comparison.h"
 #include "analysis/multiple_testing.h"

@@ -21,7 +21,7 @@ import time
 import numpy as np
 from scipy.sparse import csr_matrix
 from sklearn.decomposition import LatentDirichletAllocation
-from joblib import Parallel
+from sklearn.utils.parallel import Parallel
 
 
 def read_counts(path):
