@@ -71,7 +71,9 @@ void print_tables(const GroupComparison& comparison, const Model& model, const C
       << ".\n\n";
 
   out << (chains == 1 ? "Tests\n" : "Tests: median across chains (range)\n");
-  out << padded("test", 20) << padded("comparison", 22) << padded("statistic", 24) << padded("value", 24)
+  std::size_t comparison_width = 22;  // wide enough for "group-a vs group-b" plus two spaces
+  for (const auto& s : comparison.summaries) comparison_width = std::max(comparison_width, s.comparison.size() + 2);
+  out << padded("test", 20) << padded("comparison", comparison_width) << padded("statistic", 24) << padded("value", 24)
       << padded("effect size", 34) << "p-value\n";
   for (const auto& s : comparison.summaries) {
     const auto& first = comparison.chains.front().records;
@@ -83,18 +85,21 @@ void print_tables(const GroupComparison& comparison, const Model& model, const C
     effect_name = effect_name.substr(0, effect_name.find(" ("));
     const bool same_as_statistic = s.effect_size.median == s.statistic.median && s.effect_size.min == s.statistic.min;
     const std::string effect = same_as_statistic ? "(the statistic)" : effect_name + " " + spread(s.effect_size);
-    out << padded(s.method, 20) << padded(s.comparison, 22) << padded(s.statistic_name, 24)
+    out << padded(s.method, 20) << padded(s.comparison, comparison_width) << padded(s.statistic_name, 24)
         << padded(spread(s.statistic), 24) << padded(effect, 34) << spread(s.p_value);
     if (std::isfinite(s.adjusted_p_value.median)) out << ", adjusted " << spread(s.adjusted_p_value);
     out << "\n";
   }
-  // Warnings, once each.
+  // Warnings, once each (PERMANOVA and PERMDISP carry the same dispersion warning: shown once).
   std::vector<std::string> warnings;
+  std::vector<std::string> seen;
   for (const auto& chain : comparison.chains) {
     for (const auto& r : chain.records) {
       if (r.warning.empty()) continue;
-      const std::string line = r.method + " (" + r.comparison + "): " + r.warning;
-      if (std::find(warnings.begin(), warnings.end(), line) == warnings.end()) warnings.push_back(line);
+      const std::string key = r.comparison + "\n" + r.warning;
+      if (std::find(seen.begin(), seen.end(), key) != seen.end()) continue;
+      seen.push_back(key);
+      warnings.push_back(r.method + " (" + r.comparison + "): " + r.warning);
     }
   }
   if (!warnings.empty()) {

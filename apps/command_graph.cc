@@ -260,7 +260,7 @@ void run_graph(GraphArguments& a) {
               << r.louvain.num_communities << " Louvain communities (Q = " << r.louvain.modularity << ")\n";
     if (r.tested) {
       for (const PermutationTest* t : {&r.mixing.modularity, &r.mixing.same_group_share}) {
-        std::cout << "    " << std::left << std::setw(52) << t->statistic_name << std::right << t->statistic
+        std::cout << "    " << std::left << std::setw(54) << t->statistic_name << std::right << t->statistic
                   << "  (chance " << t->null_mean << ", p = " << std::setprecision(4) << t->p_value
                   << std::setprecision(3) << ")\n";
       }

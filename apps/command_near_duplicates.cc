@@ -101,7 +101,7 @@ void run_near_duplicates(NearDuplicateArguments& a) {
       std::cout << "  " << std::left << std::setw(width) << corpus.documents[p.first].id << std::setw(width)
                 << corpus.documents[p.second].id << std::right << std::setw(9) << p.jaccard;
       if (with_model) std::cout << std::setw(9) << p.topic_distance;
-      std::cout << std::setw(9) << result.cluster_of[p.first] << "\n";
+      std::cout << std::setw(9) << result.cluster_of[p.first] + 1 << "\n";
     }
     if (result.pairs.size() > a.show) {
       std::cout << "  ... " << result.pairs.size() - a.show << " more (--show, or --json / --csv for all)\n";

@@ -21,5 +21,7 @@ void add_demo_command(CLI::App& app);
 void add_compare_command(CLI::App& app);
 void add_graph_command(CLI::App& app);
 void add_near_duplicates_command(CLI::App& app);
+void add_attribute_command(CLI::App& app);
+void add_scan_command(CLI::App& app);
 
 }  // namespace loupe::cli

@@ -317,13 +317,13 @@ nlohmann::json near_duplicates_json(const NearDuplicateResult& result, const Cor
          {"minhash_estimate", p.estimate},
          {"shared_shingles", p.shared_shingles},
          {"topic_distance", std::isnan(p.topic_distance) ? nlohmann::json(nullptr) : nlohmann::json(p.topic_distance)},
-         {"cluster", result.cluster_of[p.first]}});
+         {"cluster", result.cluster_of[p.first] + 1}});
   }
   nlohmann::json clusters = nlohmann::json::array();
   for (std::size_t c = 0; c < result.clusters.size(); ++c) {
     nlohmann::json members = nlohmann::json::array();
     for (const auto d : result.clusters[c]) members.push_back(corpus.documents[d].id);
-    clusters.push_back({{"cluster", c}, {"size", result.clusters[c].size()}, {"documents", members}});
+    clusters.push_back({{"cluster", c + 1}, {"size", result.clusters[c].size()}, {"documents", members}});
   }
   const auto& o = result.options;
   return {{"settings",
@@ -355,7 +355,7 @@ std::string near_duplicates_csv(const NearDuplicateResult& result, const Corpus&
            csv_cell(group_of(p.first)) + "," + csv_cell(group_of(p.second)) + "," + nlohmann::json(p.jaccard).dump() +
            "," + nlohmann::json(p.estimate).dump() + "," + std::to_string(p.shared_shingles) + "," +
            (std::isnan(p.topic_distance) ? std::string() : nlohmann::json(p.topic_distance).dump()) + "," +
-           std::to_string(result.cluster_of[p.first]) + "\n";
+           std::to_string(result.cluster_of[p.first] + 1) + "\n";
   }
   return out;
 }

@@ -100,7 +100,8 @@ NearDuplicateResult find_near_duplicates(const Corpus& corpus, const NearDuplica
 // Fills topic_distance of every pair from theta (rows = corpus documents).
 void add_topic_distances(NearDuplicateResult& result, const ProfileMatrix& theta);
 
-// {"settings": ..., "pairs": [...], "clusters": [...]} with document ids.
+// {"settings": ..., "pairs": [...], "clusters": [...]} with document ids; clusters are numbered
+// from 1 in files and tables (cluster_of holds 0-based indices), as chains and topics are.
 nlohmann::json near_duplicates_json(const NearDuplicateResult& result, const Corpus& corpus);
 // CSV: first,second,first_group,second_group,jaccard,minhash_estimate,shared_shingles,topic_distance,cluster
 std::string near_duplicates_csv(const NearDuplicateResult& result, const Corpus& corpus);
