@@ -1,28 +1,39 @@
-// `loupe demo`: runs loupe on the bundled invented scenario (demo/harbour-letters).
+// `loupe demo`: runs the whole study (`loupe analyze`) on the bundled invented scenario (demo/harbour-letters)
+// and says where its report is. It replaces its own earlier output, so it can be run again and again.
 #include <filesystem>
 #include <iostream>
+#include <thread>
 
 #include "apps/commands.h"
+#include "apps/study_pipeline.h"
 #include "common/error.h"
-#include "corpus/corpus_builder.h"
 
 namespace loupe::cli {
 
-IngestReport run_ingest(const std::string& source, const IngestOptions& options, const std::string& output,
-                        const std::string& summary_json, bool quiet);
-
 namespace {
 
-// The bundled demo lives beside the sources; an installed copy may name another place.
+// The bundled demo lives beside the sources; an installed copy may name another place. A folder holding the
+// manifest letters.csv is read through the manifest (ids, roles and the year, decade and clerk columns).
 std::string find_demo_source(const std::string& given) {
   namespace fs = std::filesystem;
-  if (!given.empty()) return given;
-  for (const fs::path& candidate : {fs::path(LOUPE_DEMO_DIR), fs::path("demo/harbour-letters")}) {
-    std::error_code ec;
-    if (fs::is_directory(candidate, ec)) return candidate.string();
+  std::string folder = given;
+  if (folder.empty()) {
+    for (const fs::path& candidate : {fs::path(LOUPE_DEMO_DIR), fs::path("demo/harbour-letters")}) {
+      std::error_code ec;
+      if (fs::is_directory(candidate, ec)) {
+        folder = candidate.string();
+        break;
+      }
+    }
+    if (folder.empty()) {
+      throw Error("the bundled demo corpus was not found (looked in " + std::string(LOUPE_DEMO_DIR) +
+                  "). Pass its folder with --source.");
+    }
   }
-  throw Error("the bundled demo corpus was not found (looked in " + std::string(LOUPE_DEMO_DIR) +
-              "). Pass its folder with --source.");
+  std::error_code ec;
+  const fs::path manifest = fs::path(folder) / "letters.csv";
+  if (fs::is_directory(folder, ec) && fs::is_regular_file(manifest, ec)) folder = manifest.string();
+  return fs::absolute(folder).lexically_normal().string();
 }
 
 }  // namespace
@@ -35,28 +46,33 @@ void add_demo_command(CLI::App& app) {
   };
   auto args = std::make_shared<DemoArguments>();
   auto* cmd = app.add_subcommand("demo",
-                                 "Run loupe on the bundled invented demo: letters of three harbour offices.\n"
+                                 "Run a whole study on the bundled invented demo: letters of three harbour offices.\n"
                                  "  Example: loupe demo --output-dir demo-study");
-  cmd->add_option("--source", args->source, "The demo folder (default: the bundled one)");
-  cmd->add_option("--output-dir", args->output_dir, "Where the demo's files go")->capture_default_str();
+  cmd->add_option("--source", args->source, "The demo folder or manifest (default: the bundled one)");
+  cmd->add_option("--output-dir", args->output_dir, "The study folder (a study already there is replaced)")
+      ->capture_default_str();
   cmd->add_flag("-q,--quiet", args->quiet, "Print nothing but errors");
   cmd->callback([args] {
-    const std::string source = find_demo_source(args->source);
-    std::error_code ec;
-    std::filesystem::create_directories(args->output_dir, ec);
-    if (ec) throw Error("cannot create " + args->output_dir + ": " + ec.message() + ". Choose another --output-dir.");
-    IngestOptions options;
-    options.drop_proper_names = true;  // clerks' and ships' names would crowd out the themes
-    // Disputed letters in 50-token segments, for `loupe scan`: the long letter dsp-02
+    StudyOptions options;
+    options.source = find_demo_source(args->source);
+    options.ingest.drop_proper_names = true;  // clerks' and ships' names would crowd out the themes
+    // Disputed letters in 50-token segments, for the composite scan: the long letter dsp-02
     // (about 480 modelled tokens) gets 10 segments; at 100 tokens it would get 5, and
     // with 5 no permutation p-value of a change point can fall below about 0.2.
-    options.segment_words = 50;
-    options.segment_disputed_only = true;
-    const std::string corpus_path = (std::filesystem::path(args->output_dir) / "corpus.loupe").string();
-    const std::string summary_path = (std::filesystem::path(args->output_dir) / "ingest-summary.json").string();
+    options.ingest.segment_words = 50;
+    options.ingest.segment_disputed_only = true;
+    StudyRunSettings settings;
+    settings.output_dir = args->output_dir;
+    settings.overwrite = true;  // the demo's own folder: `make demo` runs again and again
+    settings.quiet = args->quiet;
+    settings.threads = std::max(1U, std::thread::hardware_concurrency());
     if (!args->quiet) std::cout << "loupe demo: the invented letters of three harbour offices, 1880-1910\n\n";
-    run_ingest(source, options, corpus_path, summary_path, args->quiet);
-    if (!args->quiet) std::cout << "Demo files are in " << args->output_dir << "/\n";
+    const StudyOutcome outcome = run_study(options, settings);
+    if (!args->quiet) {
+      print_study_summary(outcome, std::cout);
+      std::cout << "Open " << (std::filesystem::path(args->output_dir) / "report.html").string()
+                << " in a browser to read the whole study.\n";
+    }
   });
 }
 

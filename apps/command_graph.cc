@@ -5,8 +5,7 @@
 #include <cmath>
 #include <iomanip>
 #include <iostream>
-#include <map>
-#include <sstream>
+#include <memory>
 
 #include "apps/commands.h"
 #include "apps/progress_bar.h"
@@ -16,6 +15,7 @@
 #include "graph/document_graph.h"
 #include "graph/graph_export.h"
 #include "graph/graph_layout.h"
+#include "graph/graph_study.h"
 #include "graph/group_mixing.h"
 #include "graph/hellinger_neighbours.h"
 #include "graph/louvain.h"
@@ -44,49 +44,6 @@ struct GraphArguments {
   std::string graphml, dot, edges_csv, nodes_csv, summary_graphml, json, csv;
   bool quiet = false;
 };
-
-struct ChainResult {
-  std::size_t chain = 0;
-  std::size_t edges = 0;
-  std::size_t components = 0;
-  std::size_t largest_component = 0;
-  std::size_t isolated = 0;
-  LouvainResult louvain;
-  bool tested = false;
-  GroupMixingResult mixing;
-};
-
-std::string describe_construction(const GraphArguments& a) {
-  if (a.threshold_graph) {
-    std::ostringstream text;
-    text << "Hellinger distance <= " << a.max_distance;
-    return text.str();
-  }
-  return "k = " + std::to_string(a.neighbours) + " nearest neighbours (" + (a.mutual ? "mutual" : "either") + ")";
-}
-
-nlohmann::json chain_json(const ChainResult& r, const DocumentTable& table) {
-  nlohmann::json j = {{"chain", r.chain + 1},
-                      {"edges", r.edges},
-                      {"components", r.components},
-                      {"largest_component", r.largest_component},
-                      {"isolated_documents", r.isolated},
-                      {"communities", r.louvain.num_communities},
-                      {"louvain_modularity", std::isnan(r.louvain.modularity) ? nlohmann::json(nullptr)
-                                                                              : nlohmann::json(r.louvain.modularity)},
-                      {"louvain_levels", r.louvain.levels},
-                      {"louvain_seed", r.louvain.seed}};
-  if (r.tested) {
-    nlohmann::json shares = nlohmann::json::object();
-    for (std::size_t g = 0; g < table.groups.size() && g < r.mixing.group_share.size(); ++g) {
-      const double s = r.mixing.group_share[g];
-      shares[table.groups[g]] = std::isnan(s) ? nlohmann::json(nullptr) : nlohmann::json(s);
-    }
-    j["group_tests"] = {r.mixing.modularity.to_json(), r.mixing.same_group_share.to_json()};
-    j["same_group_share_by_group"] = shares;
-  }
-  return j;
-}
 
 void run_graph(GraphArguments& a) {
   for (const auto& [path, option] :
@@ -125,61 +82,37 @@ void run_graph(GraphArguments& a) {
   } else {
     table = document_table(model);
   }
-  GroupMixingOptions mixing;
-  mixing.permutations = a.permutations;
-  mixing.seed = a.seed;
-  mixing.threads = a.threads;
+  GraphStudyOptions options;
+  options.neighbours = a.neighbours;
+  options.max_distance = a.max_distance;
+  options.threshold_graph = a.threshold_graph;
+  options.mutual = a.mutual;
+  options.chain = a.chain;
+  options.permutations = a.permutations;
+  options.seed = a.seed;
+  options.resolution = a.resolution;
+  options.threads = a.threads;
   if (!a.strata.empty()) {
     if (a.corpus.empty()) throw Error("--strata needs --corpus: metadata columns live in the corpus, not the model.");
-    mixing.strata = table.metadata_labels(a.strata);
-    mixing.strata_name = a.strata;
+    options.strata = a.strata;
   }
+  std::unique_ptr<ProgressBar> bar;
+  std::size_t bar_chain = model.chains.size();
+  GraphStudy study =
+      build_graph_study(model, a.model, table, options, [&](std::size_t c, std::size_t done, std::size_t total) {
+        if (c != bar_chain) {
+          if (bar) bar->finish();
+          bar = std::make_unique<ProgressBar>("chain " + std::to_string(c) + ": distances", a.quiet);
+          bar_chain = c;
+        }
+        bar->update(static_cast<double>(done), static_cast<double>(total), "blocks");
+      });
+  if (bar) bar->finish();
+  const std::vector<GraphChainResult>& results = study.chains;
+  DocumentGraph& exported = study.exported;
   const auto groups = table.group_labels();
-  std::map<std::uint32_t, std::size_t> group_sizes;
-  for (const auto g : groups)
-    if (g != kNoGroup) ++group_sizes[g];
-  const bool can_test = group_sizes.size() >= 2 && a.permutations > 0;
-
-  const std::string construction = describe_construction(a);
-  NeighbourOptions neighbour_options;
-  neighbour_options.threads = a.threads;
-  std::vector<ChainResult> results;
-  DocumentGraph exported;
-  for (std::size_t c = 0; c < model.chains.size(); ++c) {
-    ProgressBar bar("chain " + std::to_string(c) + ": distances", a.quiet);
-    neighbour_options.progress = [&](std::size_t done, std::size_t total) {
-      bar.update(static_cast<double>(done), static_cast<double>(total), "blocks");
-    };
-    const ProfileMatrix theta = chain_profiles(model, c);
-    check_profiles(theta, a.model + " chain " + std::to_string(c));
-    const auto edges = a.threshold_graph ? pairs_within_distance(theta, a.max_distance, neighbour_options)
-                                         : neighbour_edges(nearest_neighbours(theta, a.neighbours, neighbour_options),
-                                                           a.mutual ? NeighbourRule::mutual : NeighbourRule::either);
-    bar.finish();
-    DocumentGraph graph = make_document_graph(table, edges, top_topics(theta), construction);
-    ChainResult r;
-    r.chain = c;
-    r.edges = edges.size();
-    r.components = label_components(graph);
-    std::vector<std::size_t> sizes(r.components, 0);
-    for (std::size_t v = 0; v < boost::num_vertices(graph); ++v) {
-      ++sizes[graph[v].component];
-      if (boost::degree(v, graph) == 0) ++r.isolated;
-    }
-    r.largest_component = sizes.empty() ? 0 : *std::max_element(sizes.begin(), sizes.end());
-    const WeightedAdjacency flat = weighted_adjacency(graph);
-    LouvainOptions louvain;
-    louvain.seed = a.seed;
-    louvain.resolution = a.resolution;
-    r.louvain = louvain_communities(flat, louvain);
-    for (std::size_t v = 0; v < r.louvain.community.size(); ++v) graph[v].community = r.louvain.community[v];
-    if (can_test && !edges.empty()) {
-      r.mixing = test_group_mixing(flat, groups, mixing);
-      r.tested = true;
-    }
-    results.push_back(std::move(r));
-    if (c + 1 == a.chain) exported = std::move(graph);
-  }
+  const bool can_test = study.can_test;
+  const std::string& construction = study.construction;
 
   const std::size_t n = boost::num_vertices(exported);
   const bool laid_out = n <= kMaxLayoutDocuments;
@@ -208,47 +141,10 @@ void run_graph(GraphArguments& a) {
     write_summary_graphml(summary, a.summary_graphml);
   }
 
-  if (!a.json.empty() || !a.csv.empty()) {
-    nlohmann::json chains = nlohmann::json::array();
-    for (const auto& r : results) chains.push_back(chain_json(r, table));
-    if (!a.json.empty()) {
-      const nlohmann::json json = {
-          {"command", "graph"},
-          {"model", a.model},
-          {"corpus", a.corpus.empty() ? nlohmann::json(nullptr) : nlohmann::json(a.corpus)},
-          {"documents", n},
-          {"construction", construction},
-          {"distance", "Hellinger, H = sqrt(1 - sum_k sqrt(theta_ik theta_jk)); edge weight 1 - H"},
-          {"seed", a.seed},
-          {"permutations", a.permutations},
-          {"strata", a.strata.empty() ? nlohmann::json(nullptr) : nlohmann::json(a.strata)},
-          {"resolution", a.resolution},
-          {"exported_chain", a.chain},
-          {"layout", laid_out ? "Fruchterman-Reingold" : "none (too many documents; see the summary graph)"},
-          {"chains", chains},
-          {"note",
-           "Topic similarity reflects subject matter more than authorship or style; these results are statistical "
-           "evidence, not proof."}};
-      write_file_atomically(a.json, json.dump(2) + "\n");
-    }
-    if (!a.csv.empty()) {
-      std::string out =
-          "chain,method,statistic_name,sample_size,groups,statistic,null_mean,null_sd,effect,p_value,permutations,seed,"
-          "strata\n";
-      for (const auto& r : results) {
-        if (!r.tested) continue;
-        for (const PermutationTest* t : {&r.mixing.modularity, &r.mixing.same_group_share}) {
-          out += std::to_string(r.chain + 1) + "," + csv_cell(t->method) + "," + csv_cell(t->statistic_name) + "," +
-                 std::to_string(t->sample_size) + "," + std::to_string(t->groups) + "," +
-                 nlohmann::json(t->statistic).dump() + "," + nlohmann::json(t->null_mean).dump() + "," +
-                 nlohmann::json(t->null_sd).dump() + "," + nlohmann::json(t->effect).dump() + "," +
-                 nlohmann::json(t->p_value).dump() + "," + std::to_string(t->permutations) + "," +
-                 std::to_string(t->seed) + "," + csv_cell(t->strata) + "\n";
-        }
-      }
-      write_file_atomically(a.csv, out);
-    }
+  if (!a.json.empty()) {
+    write_file_atomically(a.json, graph_study_json(study, table, options, a.model, a.corpus).dump(2) + "\n");
   }
+  if (!a.csv.empty()) write_file_atomically(a.csv, graph_tests_csv(study));
   if (a.quiet) return;
 
   std::cout << "Similarity graph of " << a.model << ": " << format_count(n) << " documents, " << construction
@@ -269,7 +165,7 @@ void run_graph(GraphArguments& a) {
   if (can_test) {
     std::cout << "  p-values: " << a.permutations << " permutations of the group labels"
               << (a.strata.empty() ? "" : " within " + a.strata) << ", seed " << a.seed << "\n";
-  } else if (group_sizes.size() < 2) {
+  } else if (study.groups_with_documents < 2) {
     std::cout << "  (no group tests: the documents come from fewer than 2 groups)\n";
   }
   if (!laid_out) {

@@ -23,5 +23,6 @@ void add_graph_command(CLI::App& app);
 void add_near_duplicates_command(CLI::App& app);
 void add_attribute_command(CLI::App& app);
 void add_scan_command(CLI::App& app);
+void add_analyze_command(CLI::App& app);
 
 }  // namespace loupe::cli

@@ -155,6 +155,7 @@ GroupMixingResult test_group_mixing(const WeightedAdjacency& graph, const std::v
     test.effect = observed - test.null_mean;
     // p = (1 + b) / (1 + P) (Phipson & Smyth 2010, cited from memory).
     test.p_value = (1.0 + static_cast<double>(at_least)) / (1.0 + static_cast<double>(null.size()));
+    test.null_statistics = null;
   };
   result.modularity.method = "group modularity permutation test";
   result.modularity.statistic_name = "modularity Q of the group partition";

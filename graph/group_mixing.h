@@ -39,6 +39,9 @@ struct PermutationTest {
   std::size_t permutations = 0;
   std::uint64_t seed = 0;
   std::string strata;  // "" when unrestricted
+  // The statistic of every permutation, in permutation order (the same for any thread count); for drawing
+  // the null distribution. Not part of to_json().
+  std::vector<double> null_statistics;
 
   nlohmann::json to_json() const;
 };

@@ -83,6 +83,7 @@ AnosimResult anosim(const IncludedDocuments& documents, const PermutationOptions
 
   const LabelPermuter permuter(documents.groups, documents.strata, options, documents.strata_name);
   const std::vector<double> observed{r_statistic};
+  std::vector<double> permuted;
   const auto exceedances = count_exceedances(
       permuter, observed, Tail::upper, options.threads,
       [&]() -> BatchEvaluator {
@@ -92,7 +93,8 @@ AnosimResult anosim(const IncludedDocuments& documents, const PermutationOptions
           for (std::size_t b = 0; b < batch; ++b) statistics[b] = statistic_of(sums[b]);
         };
       },
-      8);
+      8, options.keep_null_distribution ? &permuted : nullptr);
+  if (options.keep_null_distribution) r.null_distribution = null_distribution_of(permuted, 1, 0, r_statistic);
   r.p_value = permutation_p_value(exceedances[0], permuter.count());
   r.permutations = permuter.count();
   r.complete_enumeration = permuter.complete();

@@ -598,7 +598,7 @@ nlohmann::json to_json(const CompositeScan& scan) {
     text["chains"] = nlohmann::json::array();
     for (const auto& c : t.chains) {
       nlohmann::json chain;
-      chain["chain"] = c.chain;
+      chain["chain"] = c.chain + 1;  // numbered from 1, as in every file
       chain["seed"] = c.change_points.options.seed;
       chain["change_points"] = nlohmann::json::array();
       for (const auto& cp : c.change_points.change_points)

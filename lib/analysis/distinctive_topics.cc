@@ -63,14 +63,17 @@ std::vector<TestRecord> distinctive_topics(const IncludedDocuments& documents, c
   std::size_t permutations = 0;
   bool complete = false;
   std::string warning;
+  std::vector<double> permuted;
+  const bool keep_null = options.permutation.keep_null_distribution;
   if (options.permutation.permutations > 0) {
     try {
       const LabelPermuter permuter(documents.groups, documents.strata, options.permutation, documents.strata_name);
       const int largest = static_cast<int>(
           std::max_element(documents.group_sizes.begin(), documents.group_sizes.end()) - documents.group_sizes.begin());
       const RowTable table{rows.data(), n, cols};
-      exceedances =
-          count_exceedances(permuter, observed, Tail::two_sided, options.permutation.threads, [&]() -> BatchEvaluator {
+      exceedances = count_exceedances(
+          permuter, observed, Tail::two_sided, options.permutation.threads,
+          [&]() -> BatchEvaluator {
             return [&, batch_sums = std::vector<double>()](const int* labels, std::size_t batch,
                                                            double* statistics) mutable {
               batch_sums.resize(batch * groups * cols);
@@ -79,7 +82,8 @@ std::vector<TestRecord> distinctive_topics(const IncludedDocuments& documents, c
                 differences(batch_sums.data() + b * groups * cols, totals.data(), groups, topics, statistics + b * m);
               }
             };
-          });
+          },
+          16, keep_null ? &permuted : nullptr);
       permutations = permuter.count();
       complete = permuter.complete();
     } catch (const Error& error) {
@@ -110,6 +114,7 @@ std::vector<TestRecord> distinctive_topics(const IncludedDocuments& documents, c
       r.strata = documents.strata_name;
       r.seed = options.permutation.seed;
       r.warning = warning;
+      if (keep_null && permutations > 0) r.null_distribution = null_distribution_of(permuted, m, j, observed[j]);
       p[j] = r.p_value;
     }
   }

@@ -75,15 +75,20 @@ PermanovaResult permanova(const IncludedDocuments& documents, const PermutationO
                                        documents.group_sizes.begin());
   const RowTable table{centred.data(), n, topics};
   const std::vector<double> observed{f};
-  const auto exceedances = count_exceedances(permuter, observed, Tail::upper, options.threads, [&]() -> BatchEvaluator {
-    return [&, sums = std::vector<double>()](const int* labels, std::size_t batch, double* statistics) mutable {
-      sums.resize(batch * groups * topics);
-      accumulate_group_sums(table, labels, batch, groups, column_totals.data(), largest, sums.data());
-      for (std::size_t b = 0; b < batch; ++b) {
-        statistics[b] = pseudo_f(ss_between_of(sums.data() + b * groups * topics), ss_total, n, groups);
-      }
-    };
-  });
+  std::vector<double> permuted;
+  const auto exceedances = count_exceedances(
+      permuter, observed, Tail::upper, options.threads,
+      [&]() -> BatchEvaluator {
+        return [&, sums = std::vector<double>()](const int* labels, std::size_t batch, double* statistics) mutable {
+          sums.resize(batch * groups * topics);
+          accumulate_group_sums(table, labels, batch, groups, column_totals.data(), largest, sums.data());
+          for (std::size_t b = 0; b < batch; ++b) {
+            statistics[b] = pseudo_f(ss_between_of(sums.data() + b * groups * topics), ss_total, n, groups);
+          }
+        };
+      },
+      16, options.keep_null_distribution ? &permuted : nullptr);
+  if (options.keep_null_distribution) r.null_distribution = null_distribution_of(permuted, 1, 0, f);
 
   r.p_value = permutation_p_value(exceedances[0], permuter.count());
   r.permutations = permuter.count();

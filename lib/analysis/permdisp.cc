@@ -74,6 +74,7 @@ PermdispResult permdisp(const IncludedDocuments& documents, const PermutationOpt
   }
   const LabelPermuter permuter(documents.groups, documents.strata, options, documents.strata_name);
   const std::vector<double> observed{f};
+  std::vector<double> permuted;
   const auto exceedances = count_exceedances(
       permuter, observed, Tail::upper, options.threads,
       [&]() -> BatchEvaluator {
@@ -87,7 +88,8 @@ PermdispResult permdisp(const IncludedDocuments& documents, const PermutationOpt
               }
             };
       },
-      64);
+      64, options.keep_null_distribution ? &permuted : nullptr);
+  if (options.keep_null_distribution) r.null_distribution = null_distribution_of(permuted, 1, 0, f);
   r.p_value = permutation_p_value(exceedances[0], permuter.count());
   r.permutations = permuter.count();
   r.complete_enumeration = permuter.complete();

@@ -243,12 +243,13 @@ void run_in_parallel(std::size_t count, std::size_t threads, std::size_t chunk,
 
 std::vector<std::uint64_t> count_exceedances(const LabelPermuter& permuter, std::span<const double> observed, Tail tail,
                                              std::size_t threads, const EvaluatorFactory& make_evaluator,
-                                             std::size_t batch_size) {
+                                             std::size_t batch_size, std::vector<double>* permuted) {
   const std::size_t m = observed.size();
   const std::size_t n = permuter.size();
   const std::size_t total = permuter.count();
   batch_size = std::max<std::size_t>(batch_size, 1);
   std::vector<std::uint64_t> counts(m, 0);
+  if (permuted != nullptr) permuted->assign(total * m, 0.0);
   std::mutex counts_mutex;
   const std::size_t batches = (total + batch_size - 1) / batch_size;
   threads = std::clamp<std::size_t>(threads, 1, std::max<std::size_t>(batches, 1));
@@ -268,6 +269,7 @@ std::vector<std::uint64_t> count_exceedances(const LabelPermuter& permuter, std:
           permuter.permuted(first + i, std::span<int>(labels.data() + i * n, n));
         }
         evaluate(labels.data(), size, statistics.data());
+        if (permuted != nullptr) std::copy_n(statistics.data(), size * m, permuted->data() + first * m);
         for (std::size_t i = 0; i < size; ++i) {
           for (std::size_t j = 0; j < m; ++j) {
             if (at_least_as_extreme(statistics[i * m + j], observed[j], tail)) ++local[j];

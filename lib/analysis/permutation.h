@@ -19,6 +19,9 @@ struct PermutationOptions {
   std::size_t threads = 2;
   // Enumerate every distinct arrangement instead when there are at most P + 1 of them.
   bool complete_enumeration = true;
+  // Keep a histogram of each test's permuted statistics in its record (TestRecord::null_distribution), for
+  // drawing; it never changes a statistic or a p-value.
+  bool keep_null_distribution = false;
 };
 
 // One random stream: the splitmix64 generator (Steele, Lea & Flood 2014).
@@ -119,9 +122,10 @@ enum class Tail { upper, two_sided };  // b counts T* >= T, or |T*| >= |T|
 // rounding still count (vegan 2.6's permutest.betadisper guards the same way with
 // an absolute sqrt(machine epsilon): F* >= F - EPS, read from its source).
 // Integer counts from `threads` threads: the result is the same for any count.
+// With `permuted`, also keeps every permuted statistic: permutation i's m values at [i m, (i + 1) m).
 std::vector<std::uint64_t> count_exceedances(const LabelPermuter& permuter, std::span<const double> observed, Tail tail,
                                              std::size_t threads, const EvaluatorFactory& make_evaluator,
-                                             std::size_t batch_size = 16);
+                                             std::size_t batch_size = 16, std::vector<double>* permuted = nullptr);
 
 // T* counts as at least as extreme as T.
 bool at_least_as_extreme(double permuted, double observed, Tail tail);

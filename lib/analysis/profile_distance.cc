@@ -57,22 +57,26 @@ std::vector<TestRecord> pair_distances(const IncludedDocuments& pair, const Perm
   std::vector<std::uint64_t> exceedances;
   std::size_t permutations = 0;
   bool complete = false;
+  std::vector<double> permuted;
   try {
     const LabelPermuter permuter(pair.groups, pair.strata, options, pair.strata_name);
     std::vector<double> totals(cols, 0.0);
     for (std::size_t c = 0; c < cols; ++c) totals[c] = sums[c] + sums[cols + c];
     const int largest = pair.group_sizes[0] >= pair.group_sizes[1] ? 0 : 1;
     const RowTable table{rows.data(), n, cols};
-    exceedances = count_exceedances(permuter, observed, Tail::upper, options.threads, [&]() -> BatchEvaluator {
-      return [&, batch_sums = std::vector<double>(), work = std::vector<double>(2 * topics)](
-                 const int* labels, std::size_t batch, double* statistics) mutable {
-        batch_sums.resize(batch * 2 * cols);
-        accumulate_group_sums(table, labels, batch, 2, totals.data(), largest, batch_sums.data());
-        for (std::size_t b = 0; b < batch; ++b) {
-          distances_from_sums(batch_sums.data() + b * 2 * cols, topics, work.data(), statistics + 2 * b);
-        }
-      };
-    });
+    exceedances = count_exceedances(
+        permuter, observed, Tail::upper, options.threads,
+        [&]() -> BatchEvaluator {
+          return [&, batch_sums = std::vector<double>(), work = std::vector<double>(2 * topics)](
+                     const int* labels, std::size_t batch, double* statistics) mutable {
+            batch_sums.resize(batch * 2 * cols);
+            accumulate_group_sums(table, labels, batch, 2, totals.data(), largest, batch_sums.data());
+            for (std::size_t b = 0; b < batch; ++b) {
+              distances_from_sums(batch_sums.data() + b * 2 * cols, topics, work.data(), statistics + 2 * b);
+            }
+          };
+        },
+        16, options.keep_null_distribution ? &permuted : nullptr);
     permutations = permuter.count();
     complete = permuter.complete();
   } catch (const Error& error) {
@@ -83,6 +87,8 @@ std::vector<TestRecord> pair_distances(const IncludedDocuments& pair, const Perm
     records[s].p_value = permutation_p_value(exceedances[s], permutations);
     records[s].permutations = permutations;
     records[s].complete_enumeration = complete;
+    if (options.keep_null_distribution)
+      records[s].null_distribution = null_distribution_of(permuted, 2, s, observed[s]);
   }
   return records;
 }

@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <charconv>
 #include <cmath>
+#include <limits>
 #include <map>
 #include <set>
 #include <tuple>
@@ -47,29 +48,63 @@ std::string csv_field(const std::string& text) {
   return out;
 }
 
+NullDistribution null_distribution_of(std::span<const double> permuted, std::size_t stride, std::size_t column,
+                                      double observed, std::size_t bins) {
+  NullDistribution histogram;
+  if (bins == 0 || stride == 0 || column >= stride) return histogram;
+  const bool observed_finite = std::isfinite(observed);
+  double low = observed_finite ? observed : std::numeric_limits<double>::infinity();
+  double high = observed_finite ? observed : -std::numeric_limits<double>::infinity();
+  for (std::size_t i = column; i < permuted.size(); i += stride) {
+    if (!std::isfinite(permuted[i])) continue;
+    low = std::min(low, permuted[i]);
+    high = std::max(high, permuted[i]);
+  }
+  if (low > high) return histogram;  // nothing finite to draw
+  if (!(high > low)) {
+    low -= 0.5;
+    high += 0.5;
+  }
+  histogram.low = low;
+  histogram.high = high;
+  histogram.counts.assign(bins, 0);
+  const double width = (high - low) / static_cast<double>(bins);
+  for (std::size_t i = column; i < permuted.size(); i += stride) {
+    if (!std::isfinite(permuted[i])) continue;
+    const auto bin = static_cast<std::size_t>(std::max(0.0, std::floor((permuted[i] - low) / width)));
+    ++histogram.counts[std::min(bin, bins - 1)];
+  }
+  return histogram;
+}
+
 // In files and tables chains and topics are numbered from 1, as `loupe topics`
 // shows them; in memory they are 0-based indices.
 nlohmann::json to_json(const TestRecord& r) {
-  return {{"method", r.method},
-          {"statistic_name", r.statistic_name},
-          {"comparison", r.comparison},
-          {"topic", r.topic < 0 ? nlohmann::json(nullptr) : nlohmann::json(r.topic + 1)},
-          {"sample_size", r.sample_size},
-          {"groups", r.num_groups},
-          {"statistic", number_or_null(r.statistic)},
-          {"effect_size_name", r.effect_size_name},
-          {"effect_size", number_or_null(r.effect_size)},
-          {"interval_low", number_or_null(r.interval_low)},
-          {"interval_high", number_or_null(r.interval_high)},
-          {"p_value", number_or_null(r.p_value)},
-          {"adjusted_p_value", number_or_null(r.adjusted_p_value)},
-          {"adjustment", r.adjustment},
-          {"permutations", r.permutations},
-          {"complete_enumeration", r.complete_enumeration},
-          {"strata", r.strata},
-          {"seed", r.seed},
-          {"chain", r.chain + 1},
-          {"warning", r.warning}};
+  nlohmann::json json = {{"method", r.method},
+                         {"statistic_name", r.statistic_name},
+                         {"comparison", r.comparison},
+                         {"topic", r.topic < 0 ? nlohmann::json(nullptr) : nlohmann::json(r.topic + 1)},
+                         {"sample_size", r.sample_size},
+                         {"groups", r.num_groups},
+                         {"statistic", number_or_null(r.statistic)},
+                         {"effect_size_name", r.effect_size_name},
+                         {"effect_size", number_or_null(r.effect_size)},
+                         {"interval_low", number_or_null(r.interval_low)},
+                         {"interval_high", number_or_null(r.interval_high)},
+                         {"p_value", number_or_null(r.p_value)},
+                         {"adjusted_p_value", number_or_null(r.adjusted_p_value)},
+                         {"adjustment", r.adjustment},
+                         {"permutations", r.permutations},
+                         {"complete_enumeration", r.complete_enumeration},
+                         {"strata", r.strata},
+                         {"seed", r.seed},
+                         {"chain", r.chain + 1},
+                         {"warning", r.warning}};
+  if (!r.null_distribution.counts.empty()) {
+    json["null_distribution"] = {
+        {"low", r.null_distribution.low}, {"high", r.null_distribution.high}, {"counts", r.null_distribution.counts}};
+  }
+  return json;
 }
 
 nlohmann::json to_json(std::span<const TestRecord> records) {

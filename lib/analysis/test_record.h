@@ -16,6 +16,22 @@ namespace loupe {
 
 inline constexpr double kNotAvailable = std::numeric_limits<double>::quiet_NaN();
 
+// The permuted statistics of a test as a histogram, for drawing its null distribution: counts[b] permutations
+// fell in bin b of `bins` equal-width bins over [low, high], a range holding every permuted value and the
+// observed statistic (the last bin includes high). Empty counts: not kept.
+struct NullDistribution {
+  double low = 0;
+  double high = 0;
+  std::vector<std::uint64_t> counts;
+};
+inline constexpr std::size_t kNullDistributionBins = 30;
+
+// The histogram of column `column` of a table of permuted statistics with `stride` values a permutation
+// (count_exceedances' layout); NaN values are left out. When every value equals the observed one, the
+// range is [value - 0.5, value + 0.5]. Example: permuted {0, 1, 2, 3}, observed 4, 2 bins -> [0, 4], {2, 2}.
+NullDistribution null_distribution_of(std::span<const double> permuted, std::size_t stride, std::size_t column,
+                                      double observed, std::size_t bins = kNullDistributionBins);
+
 struct TestRecord {
   std::string method;          // "PERMANOVA", "PERMDISP", "ANOSIM", "pairwise PERMANOVA", ...
   std::string statistic_name;  // "pseudo-F", "F", "R", "Hellinger distance", ...
@@ -36,10 +52,11 @@ struct TestRecord {
   std::string strata;  // the metadata column permutations were restricted by; "" = free
   std::uint64_t seed = 0;
   int chain = 0;
-  std::string warning;  // plain-language caution, "" when none
+  std::string warning;                 // plain-language caution, "" when none
+  NullDistribution null_distribution;  // kept only when PermutationOptions::keep_null_distribution
 };
 
-// NaN becomes null.
+// NaN becomes null; "null_distribution" {"low", "high", "counts"} only when kept.
 nlohmann::json to_json(const TestRecord& record);
 nlohmann::json to_json(std::span<const TestRecord> records);
 
