@@ -128,7 +128,7 @@ void add_study_options(CLI::App& cmd, AnalyzeArguments& a) {
         read);
 
   const char* fit = "Fitting (as loupe fit)";
-  track(cmd.add_option("--topics", f.num_topics, "Number of topics K")->capture_default_str(), fit);
+  track(cmd.add_option("--topics", f.topic_count, "Number of topics K")->capture_default_str(), fit);
   track(cmd.add_option("--sweeps", f.sweeps, "Gibbs sweeps per chain")->capture_default_str(), fit);
   track(cmd.add_option("--burn-in", f.burn_in, "Sweeps before samples are kept")->capture_default_str(), fit);
   track(

@@ -88,7 +88,7 @@ void take_options_from_checkpoint(const CLI::App& cmd, FitArguments& args) {
   const FitOptions& stored = checkpoint.options;
   FitOptions& o = args.options;
   auto unset = [&](const char* name) { return cmd.count(name) == 0; };
-  if (unset("--topics")) o.num_topics = stored.num_topics;
+  if (unset("--topics")) o.topic_count = stored.topic_count;
   if (unset("--sweeps")) o.sweeps = stored.sweeps;
   if (unset("--burn-in")) o.burn_in = stored.burn_in;
   if (unset("--chains")) o.chains = stored.chains;
@@ -146,8 +146,8 @@ void run_fit(const CLI::App& cmd, FitArguments& args) {
   if (args.quiet) return;
 
   const auto memory = estimate_fit_memory(corpus, options);
-  const SamplerKind kind = resolve_sampler(options.sampler, options.num_topics);
-  std::cout << "Fitted " << options.num_topics << " topics on " << format_count(corpus.num_documents())
+  const SamplerKind kind = resolve_sampler(options.sampler, options.topic_count);
+  std::cout << "Fitted " << options.topic_count << " topics on " << format_count(corpus.num_documents())
             << " documents (" << format_count(corpus.num_tokens()) << " tokens): " << options.chains
             << (options.chains == 1 ? " chain" : " chains") << " x " << options.sweeps << " sweeps in "
             << fixed(model.timing.seconds, 1) << " s, " << millions(model.timing.tokens_per_second) << " tokens/s on "
@@ -194,7 +194,7 @@ void add_fit_command(CLI::App& app) {
       ->required()
       ->check(CLI::ExistingFile);
   cmd->add_option("-o,--output", args->output, "The model file to write")->required();
-  cmd->add_option("--topics", o.num_topics, "Number of topics K")->capture_default_str();
+  cmd->add_option("--topics", o.topic_count, "Number of topics K")->capture_default_str();
   cmd->add_option("--sweeps", o.sweeps, "Gibbs sweeps per chain")->capture_default_str();
   cmd->add_option("--burn-in", o.burn_in, "Sweeps before samples are kept, priors tuned and R-hat computed")
       ->capture_default_str();

@@ -58,7 +58,7 @@ std::string weight(double value) {
 
 void print_table(const Model& model, const std::vector<std::size_t>& chains, std::size_t words, std::ostream& out) {
   for (const auto c : chains) {
-    out << "Chain " << c + 1 << " of " << model.chains.size() << ": " << model.num_topics()
+    out << "Chain " << c + 1 << " of " << model.chains.size() << ": " << model.topic_count()
         << " topics (share of tokens, alpha, top words with p(word | topic))\n";
     for (const auto& topic : summarize_topics(model, c, words)) {
       char head[64];
@@ -101,7 +101,7 @@ void run_topics(const TopicsArguments& args) {
     }
     nlohmann::json out{{"model", args.model},
                        {"chains", model.chains.size()},
-                       {"num_topics", model.num_topics()},
+                       {"topic_count", model.topic_count()},
                        {"topics", topics_json(topics)}};
     std::cout << out.dump(2) << '\n';
   } else {

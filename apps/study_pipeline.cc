@@ -183,7 +183,7 @@ json study_to_json(const StudyOptions& o) {
             {"segment_words", i.segment_words},
             {"segment_disputed_only", i.segment_disputed_only}}},
           {"fit",
-           {{"topics", f.num_topics},
+           {{"topics", f.topic_count},
             {"sweeps", f.sweeps},
             {"burn_in", f.burn_in},
             {"chains", f.chains},
@@ -278,7 +278,7 @@ StudyOptions study_from_json(const json& root, const std::string& file) {
   if (const json* s = top.section("fit")) {
     SectionReader r(*s, "fit", file);
     auto& f = o.fit;
-    r.read("topics", f.num_topics);
+    r.read("topics", f.topic_count);
     r.read("sweeps", f.sweeps);
     r.read("burn_in", f.burn_in);
     r.read("chains", f.chains);
@@ -734,10 +734,10 @@ void check_source(const StudyOptions& o) {
 
 // The topics of chain 1 as `loupe topics --format json` writes them, with each group's mean topic shares.
 json topics_json_of(const Model& model, const Corpus& corpus, std::size_t words) {
-  const std::size_t k = model.num_topics();
+  const std::size_t k = model.topic_count();
   json out{{"model", kModelFile},
            {"chains", model.chains.size()},
-           {"num_topics", k},
+           {"topic_count", k},
            {"topics", topics_json(summarize_topics(model, 0, words))}};
   json shares = json::object();
   for (std::size_t g = 0; g < corpus.groups.size(); ++g) {
@@ -780,7 +780,7 @@ json model_json(const Model& model, const FitOptions& fit) {
                       {"beta", chain.beta}});
   }
   return {{"file", kModelFile},
-          {"topics", model.num_topics()},
+          {"topics", model.topic_count()},
           {"chains", model.chains.size()},
           {"rhat", number_or_null(model.rhat)},
           {"rhat_note", "Gelman-Rubin R-hat of the log-likelihood traces after burn-in; below 1.1 the chains agree"},
@@ -791,8 +791,8 @@ json model_json(const Model& model, const FitOptions& fit) {
           {"sample_lag", fit.sample_lag},
           {"seed", fit.seed},
           {"threads", fit.threads},
-          {"sampler", resolve_sampler(fit.sampler, fit.num_topics) == SamplerKind::exact ? "exact conditional"
-                                                                                         : "Metropolis-Hastings"},
+          {"sampler", resolve_sampler(fit.sampler, fit.topic_count) == SamplerKind::exact ? "exact conditional"
+                                                                                          : "Metropolis-Hastings"},
           {"documents", model.num_documents()},
           {"tokens", model.num_tokens},
           {"vocabulary", model.vocabulary_size()},
@@ -802,7 +802,7 @@ json model_json(const Model& model, const FitOptions& fit) {
 
 // theta of chain `chain` for the joined documents: each one the token-weighted mean of its segments.
 ProfileMatrix joined_profiles(const Model& model, std::size_t chain, const Corpus& corpus, const JoinedCorpus& joined) {
-  const auto k = static_cast<Eigen::Index>(model.num_topics());
+  const auto k = static_cast<Eigen::Index>(model.topic_count());
   ProfileMatrix theta = ProfileMatrix::Zero(static_cast<Eigen::Index>(joined.corpus.num_documents()), k);
   std::vector<double> weight(joined.corpus.num_documents(), 0.0);
   for (std::size_t d = 0; d < corpus.num_documents(); ++d) {

@@ -28,7 +28,7 @@ namespace {
 
 int draw(const std::string& dir, std::uint32_t tokens, std::uint32_t vocabulary, std::uint32_t topics) {
   SyntheticCorpusSpec spec;
-  spec.num_topics = topics;
+  spec.topic_count = topics;
   spec.vocabulary_size = vocabulary;
   spec.document_length = 100;
   spec.num_documents = tokens / spec.document_length;
@@ -58,7 +58,7 @@ int draw(const std::string& dir, std::uint32_t tokens, std::uint32_t vocabulary,
 }
 
 double held_out_perplexity(const Corpus& heldout, const TopicWordTable& phi, double alpha, std::size_t threads) {
-  const std::vector<double> a(phi.num_topics(), alpha);
+  const std::vector<double> a(phi.topic_count(), alpha);
   FoldInOptions options;
   options.seed = 11;
   return document_completion_perplexity(phi, a, heldout, options, ParallelRunner(threads)).perplexity;

@@ -29,7 +29,7 @@ std::uint32_t env_or(const char* name, std::uint32_t fallback) {
 const Corpus& bench_corpus() {
   static const Corpus corpus = [] {
     SyntheticCorpusSpec spec;
-    spec.num_topics = 100;
+    spec.topic_count = 100;
     spec.vocabulary_size = 20000;
     spec.document_length = 100;
     spec.num_documents = env_or("LOUPE_BENCH_TOKENS", 4000000) / spec.document_length;
@@ -83,7 +83,7 @@ void sweep_benchmark(benchmark::State& bench, SamplerKind kind) {
   bench.counters["tokens_per_s_per_thread"] =
       benchmark::Counter(tokens / threads, benchmark::Counter::kIsIterationInvariantRate);
   FitOptions options;
-  options.num_topics = k;
+  options.topic_count = k;
   options.threads = threads;
   options.sampler = kind;
   const auto memory = estimate_fit_memory(corpus, options);

@@ -71,7 +71,7 @@ DocumentTable document_table(const Model& model) {
 
 ProfileMatrix chain_profiles(const Model& model, std::size_t chain) {
   const auto n = static_cast<Eigen::Index>(model.num_documents());
-  const auto k = static_cast<Eigen::Index>(model.num_topics());
+  const auto k = static_cast<Eigen::Index>(model.topic_count());
   ProfileMatrix theta(n, k);
   for (Eigen::Index d = 0; d < n; ++d) {
     const auto row = model.theta(chain, static_cast<std::size_t>(d));

@@ -6,6 +6,7 @@
 #include <utility>
 
 #include "common/binary_io.h"
+#include "common/markup_escape.h"
 
 namespace loupe {
 
@@ -32,33 +33,6 @@ std::string number(double value) {
 }
 
 int signed_label(std::uint32_t label) { return label == kUnassigned ? -1 : static_cast<int>(label); }
-
-std::string xml_escape(const std::string& text) {
-  std::string out;
-  out.reserve(text.size());
-  for (const char c : text) {
-    switch (c) {
-      case '&':
-        out += "&amp;";
-        break;
-      case '<':
-        out += "&lt;";
-        break;
-      case '>':
-        out += "&gt;";
-        break;
-      case '"':
-        out += "&quot;";
-        break;
-      case '\'':
-        out += "&apos;";
-        break;
-      default:
-        out += c;
-    }
-  }
-  return out;
-}
 
 // A DOT ID: always quoted, with quotes and backslashes escaped.
 std::string dot_id(const std::string& text) {
@@ -115,12 +89,12 @@ class GraphmlWriter {
   void declare(const char* domain, const char* prefix, const std::vector<Key>& keys) {
     for (std::size_t k = 0; k < keys.size(); ++k) {
       out_ += "  <key id=\"" + std::string(prefix) + std::to_string(k) + "\" for=\"" + domain + "\" attr.name=\"" +
-              xml_escape(keys[k].name) + "\" attr.type=\"" + keys[k].type + "\" />\n";
+              escape_markup(keys[k].name) + "\" attr.type=\"" + keys[k].type + "\" />\n";
     }
   }
   void data(const char* indent, const char* prefix, const std::vector<std::string>& values) {
     for (std::size_t k = 0; k < values.size(); ++k) {
-      out_ += std::string(indent) + "<data key=\"" + prefix + std::to_string(k) + "\">" + xml_escape(values[k]) +
+      out_ += std::string(indent) + "<data key=\"" + prefix + std::to_string(k) + "\">" + escape_markup(values[k]) +
               "</data>\n";
     }
   }

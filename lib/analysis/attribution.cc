@@ -301,7 +301,7 @@ void check_group_sizes(const ConformalReference& reference, double level) {
 std::vector<CandidateEvidence> score_against_candidates(const ConformalReference& reference,
                                                         std::span<const double> theta,
                                                         std::span<const std::uint32_t> candidates) {
-  const Eigen::RowVectorXd y = embed(theta, reference.num_topics(), "attribution");
+  const Eigen::RowVectorXd y = embed(theta, reference.topic_count(), "attribution");
   std::vector<std::uint32_t> all;
   if (candidates.empty()) {
     all.resize(reference.num_groups());
@@ -371,7 +371,7 @@ Verdict decide_verdict(std::span<const CandidateEvidence> evidence, double none_
 
 NeighbourVote neighbour_vote(const ConformalReference& reference, std::span<const double> theta,
                              std::span<const std::uint32_t> candidates, std::size_t k) {
-  const Eigen::RowVectorXd y = embed(theta, reference.num_topics(), "neighbour vote");
+  const Eigen::RowVectorXd y = embed(theta, reference.topic_count(), "neighbour vote");
   std::vector<bool> allowed(reference.num_groups(), candidates.empty());
   for (const auto g : candidates) {
     if (g < allowed.size()) allowed[g] = true;
@@ -506,7 +506,7 @@ std::vector<MergedRows> merge_documents(const Model& model, const Corpus* corpus
 // Token-weighted mean of the rows' theta (equal weights when every weight is 0).
 std::vector<double> mean_theta(const Model& model, std::size_t chain, const std::vector<std::size_t>& rows,
                                const std::vector<double>& weights) {
-  const std::size_t k = model.num_topics();
+  const std::size_t k = model.topic_count();
   std::vector<double> theta(k, 0.0);
   double total = std::accumulate(weights.begin(), weights.end(), 0.0);
   for (std::size_t r = 0; r < rows.size(); ++r) {
@@ -551,7 +551,7 @@ KnownDocuments known_documents(const Model& model, std::size_t chain, const Corp
       kept.push_back(&m);
     }
   }
-  const std::size_t k = model.num_topics();
+  const std::size_t k = model.topic_count();
   known.theta.resize(static_cast<Eigen::Index>(kept.size()), static_cast<Eigen::Index>(k));
   for (std::size_t i = 0; i < kept.size(); ++i) {
     const auto theta = mean_theta(model, chain, kept[i]->rows, kept[i]->weights);
@@ -712,7 +712,7 @@ Attribution attribute_disputed(const Model& model, const Corpus* corpus, const E
       fold.seed = options.calibration.seed;
       outside_theta = fold_in_with_model(model, chain, *outside.corpus, outside_rows, fold, runner);
     }
-    const std::size_t k = model.num_topics();
+    const std::size_t k = model.topic_count();
     std::size_t next_outside = 0;  // outside texts come in outside_rows order
     for (std::size_t u = 0; u < units.size(); ++u) {
       const auto& unit = units[u];

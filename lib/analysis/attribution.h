@@ -64,7 +64,7 @@ struct ConformalReference {
 
   std::size_t num_groups() const { return group_names.size(); }
   std::size_t num_known() const { return known_group.size(); }
-  std::size_t num_topics() const { return static_cast<std::size_t>(embedding.cols()); }
+  std::size_t topic_count() const { return static_cast<std::size_t>(embedding.cols()); }
 };
 
 // known_theta: n x K, rows distributions; known_group: n values in 0..G-1 with

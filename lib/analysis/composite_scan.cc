@@ -342,7 +342,7 @@ std::vector<SegmentedText> texts_to_scan(const Corpus& corpus, std::span<const s
 namespace {
 
 TopicMatrix segment_theta(const Model& model, std::size_t chain, const SegmentedText& text) {
-  const std::size_t k = model.num_topics();
+  const std::size_t k = model.topic_count();
   TopicMatrix theta(static_cast<Eigen::Index>(text.num_segments()), static_cast<Eigen::Index>(k));
   for (std::size_t i = 0; i < text.num_segments(); ++i) {
     const auto shares = model.theta(chain, text.rows[i]);

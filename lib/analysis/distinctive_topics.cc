@@ -29,7 +29,7 @@ std::vector<TestRecord> distinctive_topics(const IncludedDocuments& documents, c
   }
   const std::size_t n = documents.size();
   const std::size_t groups = documents.num_groups();
-  const std::size_t topics = documents.num_topics();
+  const std::size_t topics = documents.topic_count();
   const std::size_t cols = topics + 1;
   const std::size_t m = groups * topics;
   const TopicMatrix rows = weighted_rows(documents, options.weight_by_length);

@@ -14,7 +14,7 @@ std::vector<TestRecord> GroupComparison::all_records() const {
 GroupedDocuments grouped_documents(const Model& model, std::size_t chain, const Corpus* corpus,
                                    const GroupComparisonOptions& options) {
   const std::size_t n = model.num_documents();
-  const std::size_t topics = model.num_topics();
+  const std::size_t topics = model.topic_count();
   if (chain >= model.chains.size()) {
     throw Error("the model has " + std::to_string(model.chains.size()) + " chains; there is no chain " +
                 std::to_string(chain));

@@ -68,7 +68,7 @@ GroupProfiles group_profiles(const IncludedDocuments& documents, const ProfileOp
     throw Error("the interval level must lie between 0 and 1 (e.g. 0.95); got " + std::to_string(options.level));
   }
   const std::size_t groups = documents.num_groups();
-  const std::size_t topics = documents.num_topics();
+  const std::size_t topics = documents.topic_count();
   const std::size_t cols = topics + 1;
   const TopicMatrix rows = weighted_rows(documents, options.weight_by_length);
   std::vector<double> observed(groups * cols, 0.0);

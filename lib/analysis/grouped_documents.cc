@@ -17,7 +17,7 @@ std::string default_group_name(std::size_t g) { return "group " + std::to_string
 IncludedDocuments select_documents(const GroupedDocuments& data, std::string_view method, const InclusionRules& rules) {
   const std::string what(method);
   const auto num_docs = static_cast<std::size_t>(data.theta.rows());
-  const auto num_topics = static_cast<std::size_t>(data.theta.cols());
+  const auto topic_count = static_cast<std::size_t>(data.theta.cols());
   if (data.groups.size() != num_docs) {
     throw Error(what + ": " + std::to_string(num_docs) + " documents in theta but " +
                 std::to_string(data.groups.size()) + " group labels; give one label per document");
@@ -30,7 +30,7 @@ IncludedDocuments select_documents(const GroupedDocuments& data, std::string_vie
     throw Error(what + ": " + std::to_string(num_docs) + " documents but " + std::to_string(data.lengths.size()) +
                 " document lengths; give one per document or none");
   }
-  if (num_topics == 0) throw Error(what + ": theta has no topics");
+  if (topic_count == 0) throw Error(what + ": theta has no topics");
 
   int max_label = -1;
   for (std::size_t d = 0; d < num_docs; ++d) {
@@ -82,7 +82,7 @@ IncludedDocuments select_documents(const GroupedDocuments& data, std::string_vie
 
   std::size_t n = 0;
   for (const auto size : out.group_sizes) n += size;
-  out.theta.resize(static_cast<Eigen::Index>(n), static_cast<Eigen::Index>(num_topics));
+  out.theta.resize(static_cast<Eigen::Index>(n), static_cast<Eigen::Index>(topic_count));
   out.groups.reserve(n);
   out.source_rows.reserve(n);
   std::map<int, int> stratum_index;
@@ -94,7 +94,7 @@ IncludedDocuments select_documents(const GroupedDocuments& data, std::string_vie
     if (g == kLeftOut) continue;
     const auto row = static_cast<Eigen::Index>(out.groups.size());
     double sum = 0;
-    for (std::size_t k = 0; k < num_topics; ++k) {
+    for (std::size_t k = 0; k < topic_count; ++k) {
       const double share = data.theta(static_cast<Eigen::Index>(d), static_cast<Eigen::Index>(k));
       if (!std::isfinite(share) || share < 0) {
         throw Error(what + ": document " + std::to_string(d) + ", topic " + std::to_string(k) + ": share " +

@@ -38,7 +38,7 @@ struct IncludedDocuments {
 
   std::size_t size() const { return groups.size(); }
   std::size_t num_groups() const { return group_names.size(); }
-  std::size_t num_topics() const { return static_cast<std::size_t>(theta.cols()); }
+  std::size_t topic_count() const { return static_cast<std::size_t>(theta.cols()); }
 };
 
 struct InclusionRules {

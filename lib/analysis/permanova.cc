@@ -21,7 +21,7 @@ PermanovaResult permanova(const IncludedDocuments& documents, const PermutationO
                           const std::string& method, const std::string& comparison) {
   const std::size_t n = documents.size();
   const std::size_t groups = documents.num_groups();
-  const std::size_t topics = documents.num_topics();
+  const std::size_t topics = documents.topic_count();
   // Centred embedding c_i = y_i - ybar, y_i = sqrt(theta_i) / sqrt 2: ||y_i - y_j|| is the Hellinger distance.
   TopicMatrix centred = sqrt_embedding(documents.theta);
   const Eigen::RowVectorXd mean = centred.colwise().mean();

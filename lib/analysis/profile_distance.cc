@@ -27,7 +27,7 @@ void distances_from_sums(const double* sums, std::size_t topics, double* scratch
 std::vector<TestRecord> pair_distances(const IncludedDocuments& pair, const PermutationOptions& options,
                                        bool weight_by_length, const std::string& comparison) {
   const std::size_t n = pair.size();
-  const std::size_t topics = pair.num_topics();
+  const std::size_t topics = pair.topic_count();
   const std::size_t cols = topics + 1;
   const TopicMatrix rows = weighted_rows(pair, weight_by_length);
   std::vector<double> sums(2 * cols, 0.0), scratch(2 * topics);

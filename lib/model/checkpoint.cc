@@ -60,7 +60,7 @@ FitCheckpoint read_checkpoint(const std::string& path) {
   checkpoint.corpus_fingerprint = in.get<std::uint64_t>();
   checkpoint.sweeps_done = in.get<std::uint32_t>();
   checkpoint.seconds = in.get<double>();
-  const std::size_t k = checkpoint.options.num_topics;
+  const std::size_t k = checkpoint.options.topic_count;
   if (checkpoint.sweeps_done > checkpoint.options.sweeps) in.fail("the sweep count is past the end of the fit");
   const auto chains = in.get<std::uint64_t>();
   if (chains != checkpoint.options.chains) in.fail("the number of chains does not match the settings");
@@ -102,7 +102,7 @@ std::string checkpoint_option_mismatch(const FitOptions& stored, const FitOption
 #define LOUPE_SAME(field, option)      \
   if (stored.field != requested.field) \
   return differ(option, std::to_string(stored.field), std::to_string(requested.field))
-  LOUPE_SAME(num_topics, "--topics");
+  LOUPE_SAME(topic_count, "--topics");
   LOUPE_SAME(sweeps, "--sweeps");
   LOUPE_SAME(burn_in, "--burn-in");
   LOUPE_SAME(chains, "--chains");

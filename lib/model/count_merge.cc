@@ -26,7 +26,7 @@ std::vector<std::uint32_t> balanced_word_ranges(const TopicWordCounts& counts, s
 
 void LocalCountMerger::merge(const Corpus& corpus, std::span<const Topic> topics, TopicWordCounts& counts,
                              const ParallelRunner& runner) {
-  const std::size_t k = counts.num_topics;
+  const std::size_t k = counts.topic_count;
   const std::size_t parts = std::max<std::size_t>(1, std::min<std::size_t>(runner.threads(), counts.vocabulary_size));
   const auto bounds = balanced_word_ranges(counts, parts);
   std::vector<std::vector<std::uint64_t>> partial_totals(parts, std::vector<std::uint64_t>(k, 0));

@@ -37,7 +37,7 @@ double ordered_sum(std::size_t n, const ParallelRunner& runner, F f) {
 
 double log_joint_likelihood(const Corpus& corpus, const SamplerState& state, const ParallelRunner& runner) {
   const auto& counts = state.counts;
-  const std::size_t k = counts.num_topics;
+  const std::size_t k = counts.topic_count;
   const std::size_t v = counts.vocabulary_size;
   const double beta = state.beta;
   const double alpha_sum = state.alpha_sum();
@@ -115,7 +115,7 @@ double gelman_rubin_rhat(const std::vector<std::vector<double>>& traces) {
 HeldOutScore document_completion_perplexity(const TopicWordTable& phi, std::span<const double> alpha,
                                             const Corpus& corpus, std::span<const std::size_t> documents,
                                             const FoldInOptions& options, const ParallelRunner& runner) {
-  const std::size_t k = phi.num_topics();
+  const std::size_t k = phi.topic_count();
   if (alpha.size() != k) throw Error("document completion: alpha must have one value per topic");
   std::vector<double> log_likelihood(documents.size(), 0.0);
   std::vector<std::uint64_t> scored(documents.size(), 0);

@@ -38,7 +38,7 @@ bool tunes_at(const FitOptions& options, std::uint32_t sweep) {
 void accumulate_sample(const Corpus& corpus, ChainProgress& chain) {
   const auto& state = chain.state;
   auto& sums = chain.sums;
-  const std::size_t k = state.counts.num_topics;
+  const std::size_t k = state.counts.topic_count;
   const std::size_t v = state.counts.vocabulary_size;
   const std::size_t d_total = corpus.num_documents();
   if (sums.theta_sum.empty()) {
@@ -73,7 +73,7 @@ void accumulate_sample(const Corpus& corpus, ChainProgress& chain) {
 
 ChainEstimates finish_chain(const Corpus& corpus, const ChainProgress& chain) {
   const auto& sums = chain.sums;
-  const std::size_t k = chain.state.counts.num_topics;
+  const std::size_t k = chain.state.counts.topic_count;
   const std::size_t v = chain.state.counts.vocabulary_size;
   const std::size_t d_total = corpus.num_documents();
   const double samples = sums.samples_taken;
@@ -138,11 +138,11 @@ std::uint64_t chain_seed(std::uint64_t seed, std::uint32_t chain) { return deriv
 FitMemory estimate_fit_memory(const Corpus& corpus, const FitOptions& options) {
   FitMemory memory;
   const double r = options.chains;
-  const double k = options.num_topics;
+  const double k = options.topic_count;
   const double v = static_cast<double>(corpus.vocabulary_size());
   const double d = static_cast<double>(corpus.num_documents());
   const double workers = std::min<double>(options.threads, r * std::max<double>(1, std::floor(options.threads / r)));
-  const double pair = resolve_sampler(options.sampler, options.num_topics) == SamplerKind::metropolis_hastings ? 2 : 1;
+  const double pair = resolve_sampler(options.sampler, options.topic_count) == SamplerKind::metropolis_hastings ? 2 : 1;
   memory.token_state_bytes_per_token = sizeof(WordId) + r * static_cast<double>(SamplerState::kBytesPerToken);
   memory.count_table_bytes = static_cast<std::uint64_t>(r * (v * k + k) * sizeof(std::uint32_t));
   memory.workspace_bytes = static_cast<std::uint64_t>(workers * (pair * v * k + 2 * k) * sizeof(std::uint32_t));
@@ -157,7 +157,7 @@ Model fit_model(const Corpus& corpus, const FitOptions& options, const FitContro
   validate_fit_options(options, corpus);
   const auto start = Clock::now();
   const std::uint64_t fingerprint = corpus.fingerprint();
-  const std::uint32_t k = options.num_topics;
+  const std::uint32_t k = options.topic_count;
   const std::size_t r = options.chains;
   const std::size_t threads = options.threads;
   const bool asymmetric = alpha_is_asymmetric(options);

@@ -21,14 +21,14 @@ std::vector<float> transpose(std::span<const T> phi, std::uint32_t k, std::uint3
 }  // namespace
 
 TopicWordTable::TopicWordTable(std::span<const float> phi, std::uint32_t k, std::uint32_t v)
-    : num_topics_(k), vocabulary_size_(v), values_(transpose(phi, k, v)) {}
+    : topic_count_(k), vocabulary_size_(v), values_(transpose(phi, k, v)) {}
 TopicWordTable::TopicWordTable(std::span<const double> phi, std::uint32_t k, std::uint32_t v)
-    : num_topics_(k), vocabulary_size_(v), values_(transpose(phi, k, v)) {}
+    : topic_count_(k), vocabulary_size_(v), values_(transpose(phi, k, v)) {}
 
 std::vector<double> fold_in_document(const TopicWordTable& phi, std::span<const double> alpha,
                                      std::span<const WordId> words, const FoldInOptions& options,
                                      std::uint64_t document_seed) {
-  const std::size_t k = phi.num_topics();
+  const std::size_t k = phi.topic_count();
   const double alpha_sum = std::accumulate(alpha.begin(), alpha.end(), 0.0);
   std::vector<double> theta(k, 0.0);
   const std::size_t n = words.size();
@@ -85,7 +85,7 @@ std::vector<double> fold_in_document(const TopicWordTable& phi, std::span<const 
 std::vector<double> fold_in_documents(const TopicWordTable& phi, std::span<const double> alpha, const Corpus& corpus,
                                       std::span<const std::size_t> documents, const FoldInOptions& options,
                                       const ParallelRunner& runner) {
-  const std::size_t k = phi.num_topics();
+  const std::size_t k = phi.topic_count();
   if (alpha.size() != k) throw Error("fold-in: alpha must have one value per topic");
   std::vector<double> theta(documents.size() * k);
   runner.run(documents.size(), [&](std::size_t i) {
@@ -103,7 +103,7 @@ std::vector<double> fold_in_with_model(const Model& model, std::size_t chain, co
     throw Error("fold-in: the model has " + std::to_string(model.chains.size()) + " chains, not " +
                 std::to_string(chain + 1));
   }
-  const std::uint32_t k = model.num_topics();
+  const std::uint32_t k = model.topic_count();
   const TopicWordTable phi(model.chains[chain].phi, k, static_cast<std::uint32_t>(model.vocabulary_size()));
   // The corpus's word ids in the model's vocabulary (or none).
   constexpr WordId kUnknown = static_cast<WordId>(-1);

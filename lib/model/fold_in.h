@@ -18,14 +18,14 @@ namespace loupe {
 // phi copied word-major (V x K, float) so one token reads K contiguous values.
 class TopicWordTable {
  public:
-  TopicWordTable(std::span<const float> phi_topic_major, std::uint32_t num_topics, std::uint32_t vocabulary_size);
-  TopicWordTable(std::span<const double> phi_topic_major, std::uint32_t num_topics, std::uint32_t vocabulary_size);
-  std::uint32_t num_topics() const { return num_topics_; }
+  TopicWordTable(std::span<const float> phi_topic_major, std::uint32_t topic_count, std::uint32_t vocabulary_size);
+  TopicWordTable(std::span<const double> phi_topic_major, std::uint32_t topic_count, std::uint32_t vocabulary_size);
+  std::uint32_t topic_count() const { return topic_count_; }
   std::uint32_t vocabulary_size() const { return vocabulary_size_; }
-  const float* word(WordId w) const { return values_.data() + static_cast<std::size_t>(w) * num_topics_; }
+  const float* word(WordId w) const { return values_.data() + static_cast<std::size_t>(w) * topic_count_; }
 
  private:
-  std::uint32_t num_topics_;
+  std::uint32_t topic_count_;
   std::uint32_t vocabulary_size_;
   std::vector<float> values_;
 };

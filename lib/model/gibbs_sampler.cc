@@ -25,20 +25,20 @@ std::vector<DocumentShard> make_document_shards(const Corpus& corpus, std::size_
   return shards;
 }
 
-SamplerKind resolve_sampler(SamplerKind kind, std::uint32_t num_topics) {
+SamplerKind resolve_sampler(SamplerKind kind, std::uint32_t topic_count) {
   if (kind != SamplerKind::automatic) return kind;
-  return num_topics <= kExactKernelMaxTopics ? SamplerKind::exact : SamplerKind::metropolis_hastings;
+  return topic_count <= kExactKernelMaxTopics ? SamplerKind::exact : SamplerKind::metropolis_hastings;
 }
 
 DocumentPrior::DocumentPrior(std::span<const double> values) : alpha(values.begin(), values.end()), table(values) {
   for (const double a : alpha) alpha_sum += a;
 }
 
-GibbsSampler::GibbsSampler(const Corpus& corpus, std::uint32_t num_topics, SamplerKind kind, std::uint32_t mh_steps,
+GibbsSampler::GibbsSampler(const Corpus& corpus, std::uint32_t topic_count, SamplerKind kind, std::uint32_t mh_steps,
                            std::size_t shards)
     : corpus_(corpus),
-      num_topics_(num_topics),
-      kind_(resolve_sampler(kind, num_topics)),
+      topic_count_(topic_count),
+      kind_(resolve_sampler(kind, topic_count)),
       mh_steps_(std::max<std::uint32_t>(mh_steps, 1)),
       shards_(make_document_shards(corpus, shards)) {}
 
@@ -47,7 +47,7 @@ void GibbsSampler::initialize_shard(SamplerState& state, std::uint64_t chain_see
   for (std::size_t d = range.first; d < range.end; ++d) {
     Xoshiro256 rng(derive_seed(chain_seed, {0, d}));
     for (auto i = corpus_.token_offsets[d]; i < corpus_.token_offsets[d + 1]; ++i) {
-      state.topics[i] = static_cast<Topic>(rng.below(num_topics_));
+      state.topics[i] = static_cast<Topic>(rng.below(topic_count_));
     }
   }
 }
@@ -59,7 +59,7 @@ void GibbsSampler::sample_shard(SamplerState& state, const DocumentPrior& prior,
   // The shard's private counts start from the last merge.
   const auto& counts = state.counts;
   workspace.topic_total = counts.topic_total;
-  workspace.doc_counts.assign(num_topics_, 0);
+  workspace.doc_counts.assign(topic_count_, 0);
   if (kind_ == SamplerKind::exact) {
     workspace.word_topic.resize(counts.word_topic.size());
     std::memcpy(workspace.word_topic.data(), counts.word_topic.data(),
@@ -78,7 +78,7 @@ void GibbsSampler::sample_shard(SamplerState& state, const DocumentPrior& prior,
 
 void GibbsSampler::sample_exact(SamplerState& state, const DocumentPrior& prior, std::uint64_t chain_seed,
                                 std::uint32_t sweep, const DocumentShard& range, ShardWorkspace& workspace) const {
-  const std::size_t k_topics = num_topics_;
+  const std::size_t k_topics = topic_count_;
   const double beta = state.beta;
   const double v_beta = beta * static_cast<double>(state.counts.vocabulary_size);
   const double* alpha = prior.alpha.data();
@@ -126,7 +126,7 @@ void GibbsSampler::sample_exact(SamplerState& state, const DocumentPrior& prior,
 void GibbsSampler::sample_metropolis_hastings(SamplerState& state, const DocumentPrior& prior, std::uint64_t chain_seed,
                                               std::uint32_t sweep, const DocumentShard& range,
                                               ShardWorkspace& workspace) const {
-  const std::uint32_t k_topics = num_topics_;
+  const std::uint32_t k_topics = topic_count_;
   const auto& merged = state.counts;
   const std::uint64_t* word_offsets = merged.word_offsets.data();
   const Topic* pool = merged.word_pool.data();

@@ -40,7 +40,7 @@ std::vector<DocumentShard> make_document_shards(const Corpus& corpus, std::size_
 inline constexpr std::uint32_t kExactKernelMaxTopics = 24;
 
 // The kernel `kind` asks for, given K (automatic picks by kExactKernelMaxTopics).
-SamplerKind resolve_sampler(SamplerKind kind, std::uint32_t num_topics);
+SamplerKind resolve_sampler(SamplerKind kind, std::uint32_t topic_count);
 
 // The alpha part of the document proposal, built once per sweep.
 struct DocumentPrior {
@@ -62,11 +62,11 @@ struct ShardWorkspace {
 class GibbsSampler {
  public:
   // kind must be exact or metropolis_hastings (see resolve_sampler).
-  GibbsSampler(const Corpus& corpus, std::uint32_t num_topics, SamplerKind kind, std::uint32_t mh_steps,
+  GibbsSampler(const Corpus& corpus, std::uint32_t topic_count, SamplerKind kind, std::uint32_t mh_steps,
                std::size_t shards);
 
   const std::vector<DocumentShard>& shards() const { return shards_; }
-  std::uint32_t num_topics() const { return num_topics_; }
+  std::uint32_t topic_count() const { return topic_count_; }
   SamplerKind kind() const { return kind_; }
 
   // Sweep 0: a uniformly random topic for every token of the shard.
@@ -84,7 +84,7 @@ class GibbsSampler {
   void sample_metropolis_hastings(SamplerState& state, const DocumentPrior& prior, std::uint64_t chain_seed,
                                   std::uint32_t sweep, const DocumentShard& range, ShardWorkspace& workspace) const;
   const Corpus& corpus_;
-  std::uint32_t num_topics_;
+  std::uint32_t topic_count_;
   SamplerKind kind_;
   std::uint32_t mh_steps_;
   std::vector<DocumentShard> shards_;

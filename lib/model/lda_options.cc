@@ -21,7 +21,7 @@ std::string number(double value) {
 }  // namespace
 
 void validate_fit_options(const FitOptions& options, const Corpus& corpus) {
-  const auto k = options.num_topics;
+  const auto k = options.topic_count;
   if (corpus.num_documents() == 0 || corpus.num_tokens() == 0) {
     reject("the corpus is empty (it has " + std::to_string(corpus.num_documents()) + " documents and " +
            std::to_string(corpus.num_tokens()) +
@@ -80,7 +80,7 @@ void validate_fit_options(const FitOptions& options, const Corpus& corpus) {
 }
 
 std::vector<double> initial_alpha(const FitOptions& options) {
-  const auto k = options.num_topics;
+  const auto k = options.topic_count;
   if (options.alpha.size() == k && k > 1) return options.alpha;
   // Symmetric default 50/K: Griffiths & Steyvers (2004, PNAS), "Finding scientific topics".
   const double value = options.alpha.empty() ? 50.0 / static_cast<double>(k) : options.alpha.front();
@@ -88,7 +88,7 @@ std::vector<double> initial_alpha(const FitOptions& options) {
 }
 
 bool alpha_is_asymmetric(const FitOptions& options) {
-  return options.asymmetric_alpha || (options.alpha.size() > 1 && options.alpha.size() == options.num_topics);
+  return options.asymmetric_alpha || (options.alpha.size() > 1 && options.alpha.size() == options.topic_count);
 }
 
 std::vector<std::uint32_t> retained_sweeps(const FitOptions& options) {
@@ -106,7 +106,7 @@ std::vector<std::uint32_t> retained_sweeps(const FitOptions& options) {
 namespace loupe {
 
 void write_fit_options(BinaryWriter& out, const FitOptions& o) {
-  out.put(o.num_topics);
+  out.put(o.topic_count);
   out.put(o.sweeps);
   out.put(o.burn_in);
   out.put(o.chains);
@@ -127,7 +127,7 @@ void write_fit_options(BinaryWriter& out, const FitOptions& o) {
 
 FitOptions read_fit_options(BinaryReader& in) {
   FitOptions o;
-  o.num_topics = in.get<std::uint32_t>();
+  o.topic_count = in.get<std::uint32_t>();
   o.sweeps = in.get<std::uint32_t>();
   o.burn_in = in.get<std::uint32_t>();
   o.chains = in.get<std::uint32_t>();
@@ -148,8 +148,8 @@ FitOptions read_fit_options(BinaryReader& in) {
   o.mh_steps = in.get<std::uint32_t>();
   o.checkpoint_every = in.get<std::uint32_t>();
   o.checkpoint_path = in.get_string();
-  if (o.num_topics < 2 || o.num_topics > kMaxTopics)
-    in.fail("the number of topics " + std::to_string(o.num_topics) + " is impossible");
+  if (o.topic_count < 2 || o.topic_count > kMaxTopics)
+    in.fail("the number of topics " + std::to_string(o.topic_count) + " is impossible");
   if (o.chains == 0 || o.sweeps == 0 || o.samples == 0) in.fail("the fit settings are impossible");
   return o;
 }

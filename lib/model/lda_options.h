@@ -18,12 +18,12 @@ inline constexpr std::uint32_t kMaxTopics = 65535;
 enum class SamplerKind : std::uint8_t { automatic = 0, exact = 1, metropolis_hastings = 2 };
 
 struct FitOptions {
-  std::uint32_t num_topics = 20;  // K
-  std::uint32_t sweeps = 1000;    // Gibbs sweeps per chain, initialisation not counted
-  std::uint32_t burn_in = 200;    // sweeps discarded before samples, tuning and R-hat
-  std::uint32_t chains = 1;       // R independent chains
-  std::uint32_t threads = 1;      // worker threads (changes speed, never the result)
-  std::uint64_t seed = 1;         // master seed; chain seeds derive from it
+  std::uint32_t topic_count = 20;  // K
+  std::uint32_t sweeps = 1000;     // Gibbs sweeps per chain, initialisation not counted
+  std::uint32_t burn_in = 200;     // sweeps discarded before samples, tuning and R-hat
+  std::uint32_t chains = 1;        // R independent chains
+  std::uint32_t threads = 1;       // worker threads (changes speed, never the result)
+  std::uint64_t seed = 1;          // master seed; chain seeds derive from it
 
   // Document-topic prior. Empty: symmetric 50/K (Griffiths & Steyvers 2004);
   // one value: symmetric, that value per topic; K values: asymmetric.

@@ -11,7 +11,7 @@ std::span<const float> Model::phi(std::size_t chain, std::size_t topic) const {
 }
 
 std::span<const float> Model::theta(std::size_t chain, std::size_t document) const {
-  const std::size_t k = num_topics();
+  const std::size_t k = topic_count();
   return {chains[chain].theta.data() + document * k, k};
 }
 

@@ -48,7 +48,7 @@ struct Model {
     double tokens_per_second = 0;  // token updates per second over the sweeps of this session
   } timing;
 
-  std::uint32_t num_topics() const { return options.num_topics; }
+  std::uint32_t topic_count() const { return options.topic_count; }
   std::size_t vocabulary_size() const { return vocabulary.size(); }
   std::size_t num_documents() const { return document_ids.size(); }
   std::span<const float> phi(std::size_t chain, std::size_t topic) const;

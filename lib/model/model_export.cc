@@ -27,7 +27,7 @@ std::string csv_field(std::string_view text) {
 }
 
 void write_phi_csv(const Model& model, std::size_t chain, std::ostream& out) {
-  const std::size_t k = model.num_topics();
+  const std::size_t k = model.topic_count();
   const std::size_t v = model.vocabulary_size();
   out << "word";
   for (std::size_t t = 0; t < k; ++t) out << ",topic_" << t + 1;
@@ -44,7 +44,7 @@ void write_phi_csv(const Model& model, std::size_t chain, std::ostream& out) {
 }
 
 void write_theta_csv(const Model& model, std::size_t chain, std::ostream& out) {
-  const std::size_t k = model.num_topics();
+  const std::size_t k = model.topic_count();
   out << "document,group";
   for (std::size_t t = 0; t < k; ++t) out << ",topic_" << t + 1;
   out << '\n';
@@ -73,7 +73,7 @@ void write_topic_priors_csv(const Model& model, std::ostream& out) {
   out << "chain,topic,share,alpha,beta\n";
   for (std::size_t c = 0; c < model.chains.size(); ++c) {
     const auto& chain = model.chains[c];
-    for (std::size_t t = 0; t < model.num_topics(); ++t) {
+    for (std::size_t t = 0; t < model.topic_count(); ++t) {
       out << c + 1 << ',' << t + 1 << ',';
       put_number(out, chain.topic_share[t]);
       out << ',';
@@ -87,7 +87,7 @@ void write_topic_priors_csv(const Model& model, std::ostream& out) {
 
 std::vector<TopicSummary> summarize_topics(const Model& model, std::size_t chain, std::size_t words) {
   std::vector<TopicSummary> topics;
-  for (std::size_t t = 0; t < model.num_topics(); ++t) {
+  for (std::size_t t = 0; t < model.topic_count(); ++t) {
     TopicSummary summary;
     summary.chain = chain;
     summary.topic = t;

@@ -71,7 +71,7 @@ Model read_model(const std::string& path) {
   model.document_groups = in.get_vector<std::uint32_t>();
   const auto roles = in.get_vector<std::uint8_t>();
   model.rhat = in.get<double>();
-  const std::size_t k = model.options.num_topics;
+  const std::size_t k = model.options.topic_count;
   const std::size_t v = model.vocabulary.size();
   const std::size_t d = model.document_ids.size();
   if (model.document_groups.size() != d || roles.size() != d) in.fail("the document tables differ in length");

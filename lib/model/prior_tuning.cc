@@ -103,7 +103,7 @@ double fit_symmetric_dirichlet(const CountHistogram& cells, const CountHistogram
 }
 
 void tune_priors(const Corpus& corpus, SamplerState& state, bool asymmetric_alpha) {
-  const std::size_t k = state.counts.num_topics;
+  const std::size_t k = state.counts.topic_count;
   // Document-topic counts n_dk, per topic (asymmetric) or pooled (symmetric).
   std::vector<std::vector<std::uint32_t>> per_topic(asymmetric_alpha ? k : 1);
   std::vector<std::uint32_t> lengths;

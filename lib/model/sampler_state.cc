@@ -7,7 +7,7 @@
 namespace loupe {
 
 void TopicWordCounts::reset(const Corpus& corpus, std::uint32_t topics) {
-  num_topics = topics;
+  topic_count = topics;
   vocabulary_size = static_cast<std::uint32_t>(corpus.vocabulary_size());
   word_topic.assign(static_cast<std::size_t>(vocabulary_size) * topics, 0);
   topic_total.assign(topics, 0);
@@ -28,7 +28,7 @@ double SamplerState::alpha_sum() const { return std::accumulate(alpha.begin(), a
 
 void check_sampler_invariants(const Corpus& corpus, const SamplerState& state) {
   const auto& c = state.counts;
-  const std::size_t k = c.num_topics;
+  const std::size_t k = c.topic_count;
   auto fail = [](const std::string& what) { throw std::logic_error("sampler invariant broken: " + what); };
   if (state.topics.size() != corpus.num_tokens()) fail("one topic per token");
   if (c.word_topic.size() != k * c.vocabulary_size || c.topic_total.size() != k) fail("table sizes");

@@ -20,7 +20,7 @@ using Topic = std::uint16_t;
 //   tokens, so a uniform draw from it is a draw from word_topic row w. Example:
 //   word 3 has tokens with topics {2, 0, 2}: row 3 is (1, 0, 2), its pool [0, 2, 2].
 struct TopicWordCounts {
-  std::uint32_t num_topics = 0;
+  std::uint32_t topic_count = 0;
   std::uint32_t vocabulary_size = 0;
   std::vector<std::uint32_t> word_topic;
   std::vector<std::uint32_t> topic_total;

@@ -51,7 +51,7 @@ void recount_frequencies(Corpus& corpus) {
 }  // namespace
 
 SyntheticCorpus draw_lda_corpus(const SyntheticCorpusSpec& spec) {
-  const std::size_t k = spec.num_topics;
+  const std::size_t k = spec.topic_count;
   const std::size_t v = spec.vocabulary_size;
   if (k == 0 || v == 0) throw Error("draw_lda_corpus: topics and vocabulary must be non-empty");
   if (!spec.topics.empty() && spec.topics.size() != k * v) throw Error("draw_lda_corpus: topics must be K x V");

@@ -12,7 +12,7 @@
 namespace loupe {
 
 struct SyntheticCorpusSpec {
-  std::uint32_t num_topics = 10;
+  std::uint32_t topic_count = 10;
   std::uint32_t vocabulary_size = 1000;
   std::uint32_t num_documents = 1000;
   std::uint32_t document_length = 100;  // mean length

@@ -1,36 +1,12 @@
 #include "report/html_text.h"
+#include "common/markup_escape.h"
 
 #include <cmath>
 #include <cstdio>
 
 namespace loupe::report {
 
-std::string escape_html(std::string_view text) {
-  std::string out;
-  out.reserve(text.size());
-  for (const char c : text) {
-    switch (c) {
-      case '&':
-        out += "&amp;";
-        break;
-      case '<':
-        out += "&lt;";
-        break;
-      case '>':
-        out += "&gt;";
-        break;
-      case '"':
-        out += "&quot;";
-        break;
-      case '\'':
-        out += "&#39;";
-        break;
-      default:
-        out += c;
-    }
-  }
-  return out;
-}
+std::string escape_html(std::string_view text) { return escape_markup(text); }
 
 std::string format_number(double value, int significant) {
   if (!std::isfinite(value)) return "\u2013";

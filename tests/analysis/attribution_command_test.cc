@@ -51,7 +51,7 @@ StudyFiles& study_files() {
       if (d.id == "x0-0") d.metadata = {"office-b;office-c"};
     }
     FitOptions fit;
-    fit.num_topics = static_cast<std::uint32_t>(f->study.num_topics);
+    fit.topic_count = static_cast<std::uint32_t>(f->study.topic_count);
     fit.sweeps = 150;
     fit.burn_in = 100;
     fit.samples = 5;
@@ -158,7 +158,7 @@ TEST(AttributeCommandTest, ErrorsSayWhatToDo) {
     }
   }
   FitOptions fit;
-  fit.num_topics = 4;
+  fit.topic_count = 4;
   fit.sweeps = 20;
   fit.burn_in = 10;
   fit.samples = 2;

@@ -41,7 +41,7 @@ TEST(AttributionReferenceTest, ConformalPValuesOfHeldOutTrueGroupTextsAreUniform
     spec.seed = 100 + replicate;
     const test::DrawnStudy study = test::draw_study(spec);
     FitOptions fit;
-    fit.num_topics = static_cast<std::uint32_t>(study.num_topics);
+    fit.topic_count = static_cast<std::uint32_t>(study.topic_count);
     fit.sweeps = 150;
     fit.burn_in = 100;
     fit.samples = 5;
@@ -139,7 +139,7 @@ TEST(AttributionReferenceTest, SpamAssassinHamAndSpamLeaveOneOutAccuracy) {
   ingest.invalid_utf8 = InvalidUtf8Policy::replace;
   const Corpus corpus = build_corpus(folder.file("mail"), ingest, nullptr);
   FitOptions fit;
-  fit.num_topics = 20;
+  fit.topic_count = 20;
   fit.sweeps = 200;
   fit.burn_in = 100;
   fit.samples = 5;

@@ -369,7 +369,7 @@ TEST(AttributionTest, SegmentsOfADisputedDocumentAreJudgedTogether) {
   // The token-weighted mean theta = (30 theta_x1 + 90 theta_x2) / 120, scored directly.
   const KnownDocuments known = known_documents(built.model, 0, &built.corpus, options.min_tokens);
   const auto reference = build_conformal_reference(known.theta, known.groups, known.group_names);
-  std::vector<double> mean(built.model.num_topics());
+  std::vector<double> mean(built.model.topic_count());
   for (std::size_t k = 0; k < mean.size(); ++k) {
     mean[k] = (30.0 * built.model.theta(0, built.first_disputed + 1)[k] +
                90.0 * built.model.theta(0, built.first_disputed + 2)[k]) /
@@ -384,7 +384,7 @@ TEST(AttributionTest, AgreementAcrossChainsCountsTheModalVerdict) {
   auto built = test::small_model(1, 200, /*chains=*/3);
   // Chain 3 moves the disputed text onto the other group's profile.
   const std::size_t x = built.first_disputed;
-  const std::size_t k = built.model.num_topics();
+  const std::size_t k = built.model.topic_count();
   auto& theta = built.model.chains[2].theta;
   for (std::size_t t = 0; t < k; ++t) theta[x * k + t] = built.model.chains[2].theta[0 * k + t];  // like d0 (customs)
   for (std::size_t t = 0; t < k; ++t) {
@@ -421,7 +421,7 @@ DrawnOutcome run_drawn_study(std::uint64_t seed, bool outsider_borrows) {
   spec.outsider_borrows = outsider_borrows;
   const test::DrawnStudy study = test::draw_study(spec);
   FitOptions fit;
-  fit.num_topics = static_cast<std::uint32_t>(study.num_topics);
+  fit.topic_count = static_cast<std::uint32_t>(study.topic_count);
   fit.sweeps = 200;
   fit.burn_in = 100;
   fit.samples = 5;

@@ -80,7 +80,7 @@ inline SmallModel small_model(std::size_t disputed, std::size_t disputed_length 
     add("x" + std::to_string(d), kNoGroup, DocumentRole::disputed, disputed_length);
 
   record_corpus(s.model, s.corpus);
-  s.model.options.num_topics = static_cast<std::uint32_t>(k);
+  s.model.options.topic_count = static_cast<std::uint32_t>(k);
   const std::vector<std::vector<double>> profiles{{0.6, 0.2, 0.1, 0.1}, {0.1, 0.1, 0.2, 0.6}};
   std::mt19937_64 rng(42);
   for (std::size_t c = 0; c < chains; ++c) {
@@ -126,7 +126,7 @@ struct DrawnStudySpec {
 struct DrawnStudy {
   Corpus corpus;
   std::vector<int> truth;  // per document: its group 0..G-1, or -1 for an outsider
-  std::size_t num_topics = 0;
+  std::size_t topic_count = 0;
 };
 
 // Topics: 2 per known group (weights 3.0 and 2.4 for it, 0.05 for the others), 2
@@ -160,7 +160,7 @@ inline DrawnStudy draw_study(const DrawnStudySpec& spec) {
   std::vector<std::discrete_distribution<std::size_t>> words_of;
   for (const auto& row : phi) words_of.emplace_back(row.begin(), row.end());
   DrawnStudy study;
-  study.num_topics = k;
+  study.topic_count = k;
   auto& corpus = study.corpus;
   for (std::size_t w = 0; w < vocabulary; ++w) corpus.vocabulary.push_back(word_name(w));
   for (std::size_t g = 0; g < spec.groups; ++g)

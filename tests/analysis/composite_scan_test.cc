@@ -398,7 +398,7 @@ struct ScanStudy {
     corpus.word_frequency[1] = corpus.num_tokens();
     corpus.document_frequency[1] = 50;
 
-    model.options.num_topics = kTopics;
+    model.options.topic_count = kTopics;
     model.options.chains = static_cast<std::uint32_t>(chains);
     record_corpus(model, corpus);
     for (std::size_t c = 0; c < chains; ++c) {

@@ -57,7 +57,7 @@ const Corpus& corpus() {
 const Model& model() {
   static const Model m = [] {
     FitOptions options;
-    options.num_topics = 4;
+    options.topic_count = 4;
     options.sweeps = 150;
     options.alpha = {0.5};
     options.burn_in = 100;

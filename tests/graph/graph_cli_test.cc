@@ -24,7 +24,7 @@ using testing::run_loupe;
 Model model_for(const Corpus& corpus, const std::vector<ProfileMatrix>& chains) {
   Model model;
   const auto k = static_cast<std::size_t>(chains.front().cols());
-  model.options.num_topics = static_cast<std::uint32_t>(k);
+  model.options.topic_count = static_cast<std::uint32_t>(k);
   model.options.chains = static_cast<std::uint32_t>(chains.size());
   record_corpus(model, corpus);
   for (std::size_t c = 0; c < chains.size(); ++c) {

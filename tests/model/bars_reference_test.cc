@@ -12,7 +12,7 @@ namespace {
 
 TEST(ModelReferenceBars, RecoversAllTenBars) {
   SyntheticCorpusSpec spec;
-  spec.num_topics = 10;
+  spec.topic_count = 10;
   spec.vocabulary_size = 25;
   spec.topics = bars_topics(5);
   spec.num_documents = 2000;  // Griffiths & Steyvers (2004) drew 2000 documents
@@ -22,7 +22,7 @@ TEST(ModelReferenceBars, RecoversAllTenBars) {
   const auto drawn = draw_lda_corpus(spec);
 
   FitOptions options;
-  options.num_topics = 10;
+  options.topic_count = 10;
   options.sweeps = 300;
   options.burn_in = 100;
   options.samples = 5;

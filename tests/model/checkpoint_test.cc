@@ -21,7 +21,7 @@ using ::testing::HasSubstr;
 
 Corpus corpus_for_checkpoints() {
   SyntheticCorpusSpec spec;
-  spec.num_topics = 4;
+  spec.topic_count = 4;
   spec.vocabulary_size = 60;
   spec.num_documents = 50;
   spec.document_length = 25;
@@ -31,7 +31,7 @@ Corpus corpus_for_checkpoints() {
 
 FitOptions checkpoint_options(const std::string& path) {
   FitOptions options;
-  options.num_topics = 5;
+  options.topic_count = 5;
   options.sweeps = 30;
   options.burn_in = 10;
   options.samples = 4;

@@ -71,7 +71,7 @@ CommandRun loupe(const std::vector<std::string>& args, const test::TempFolder& f
 
 Corpus cli_corpus(std::uint32_t documents, std::uint32_t length) {
   SyntheticCorpusSpec spec;
-  spec.num_topics = 4;
+  spec.topic_count = 4;
   spec.vocabulary_size = 120;
   spec.num_documents = documents;
   spec.document_length = length;
@@ -149,7 +149,7 @@ TEST(FitCommandTest, FitTopicsAndExport) {
   auto json = loupe({"topics", model_path, "--format", "json", "--words", "2", "--chain", "2"}, folder);
   ASSERT_EQ(json.exit_code, 0) << json.err;
   const auto parsed = nlohmann::json::parse(json.out);
-  EXPECT_EQ(parsed["num_topics"], 4);
+  EXPECT_EQ(parsed["topic_count"], 4);
   ASSERT_EQ(parsed["topics"].size(), 4U);
   EXPECT_EQ(parsed["topics"][0]["chain"], 2);
   EXPECT_EQ(parsed["topics"][0]["words"].size(), 2U);

@@ -42,7 +42,7 @@ double dense_log_joint(const Corpus& corpus, const SamplerState& state) {
 
 Corpus drawn(std::uint32_t documents, std::uint64_t seed) {
   SyntheticCorpusSpec spec;
-  spec.num_topics = 5;
+  spec.topic_count = 5;
   spec.vocabulary_size = 60;
   spec.num_documents = documents;
   spec.document_length = 40;
@@ -114,7 +114,7 @@ TEST(DocumentCompletionTest, IdenticalTopicsGiveTheWordDistributionsPerplexity) 
 
 TEST(DocumentCompletionTest, TrueTopicsScoreBetterThanScrambledOnesAndRunsAreRepeatable) {
   SyntheticCorpusSpec spec;
-  spec.num_topics = 4;
+  spec.topic_count = 4;
   spec.vocabulary_size = 50;
   spec.num_documents = 80;
   spec.document_length = 60;

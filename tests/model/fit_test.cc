@@ -17,7 +17,7 @@ namespace {
 
 SyntheticCorpus drawn_sample() {
   SyntheticCorpusSpec spec;
-  spec.num_topics = 5;
+  spec.topic_count = 5;
   spec.vocabulary_size = 100;
   spec.num_documents = 120;
   spec.document_length = 40;
@@ -29,7 +29,7 @@ SyntheticCorpus drawn_sample() {
 
 FitOptions base_options() {
   FitOptions options;
-  options.num_topics = 5;
+  options.topic_count = 5;
   options.sweeps = 40;
   options.burn_in = 10;
   options.samples = 5;

@@ -78,14 +78,14 @@ TEST(FoldInTest, WithAModelMatchesWordsByTextAndDropsUnknownOnes) {
   // Fit the bars, then fold in a document from a corpus with its own
   // vocabulary order and a word the model never saw.
   SyntheticCorpusSpec spec;
-  spec.num_topics = 10;
+  spec.topic_count = 10;
   spec.vocabulary_size = 25;
   spec.topics = bars_topics(5);
   spec.num_documents = 400;
   spec.seed = 3;
   const auto sample = draw_lda_corpus(spec);
   FitOptions options;
-  options.num_topics = 10;
+  options.topic_count = 10;
   options.sweeps = 60;
   options.burn_in = 20;
   options.samples = 2;

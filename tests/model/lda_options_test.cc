@@ -18,7 +18,7 @@ Corpus small_corpus() { return test::make_corpus({{0, 1, 2, 3}, {2, 3, 4, 4}, {0
 
 FitOptions small_options() {
   FitOptions options;
-  options.num_topics = 2;
+  options.topic_count = 2;
   options.sweeps = 20;
   options.burn_in = 5;
   options.samples = 3;
@@ -39,19 +39,19 @@ TEST(FitOptionsTest, AcceptsSensibleSettings) { EXPECT_EQ(error_of(small_options
 
 TEST(FitOptionsTest, RejectsFewerThanTwoTopics) {
   auto options = small_options();
-  options.num_topics = 1;
+  options.topic_count = 1;
   EXPECT_THAT(error_of(options, small_corpus()), HasSubstr("--topics) is 1; it must be at least 2"));
 }
 
 TEST(FitOptionsTest, RejectsMoreTopicsThanTokens) {
   auto options = small_options();
-  options.num_topics = 12;  // the corpus has 11 tokens
+  options.topic_count = 12;  // the corpus has 11 tokens
   EXPECT_THAT(error_of(options, small_corpus()), HasSubstr("larger than the number of tokens in the corpus (11)"));
 }
 
 TEST(FitOptionsTest, RejectsMoreTopicsThanSixteenBitsHold) {
   auto options = small_options();
-  options.num_topics = 70000;
+  options.topic_count = 70000;
   Corpus big = test::make_corpus({std::vector<WordId>(70001, 0)}, 1);
   EXPECT_THAT(error_of(options, big), HasSubstr("at most 65535"));
 }
@@ -123,14 +123,14 @@ TEST(FitOptionsTest, RejectsZeroChainsThreadsAndIntervals) {
 
 TEST(FitOptionsTest, FitModelValidatesFirst) {
   auto options = small_options();
-  options.num_topics = 1;
+  options.topic_count = 1;
   EXPECT_THROW(fit_model(small_corpus(), options), Error);
 }
 
 TEST(FitOptionsTest, DefaultAlphaIsFiftyOverK) {
   // Griffiths & Steyvers (2004): alpha = 50 / K.
   auto options = small_options();
-  options.num_topics = 25;
+  options.topic_count = 25;
   EXPECT_EQ(initial_alpha(options), std::vector<double>(25, 2.0));
   options.alpha = {0.3};
   EXPECT_EQ(initial_alpha(options), std::vector<double>(25, 0.3));

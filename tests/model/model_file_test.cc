@@ -20,7 +20,7 @@ using ::testing::HasSubstr;
 
 Model small_model(Corpus* corpus_out = nullptr) {
   SyntheticCorpusSpec spec;
-  spec.num_topics = 3;
+  spec.topic_count = 3;
   spec.vocabulary_size = 30;
   spec.num_documents = 20;
   spec.document_length = 15;
@@ -29,7 +29,7 @@ Model small_model(Corpus* corpus_out = nullptr) {
   corpus.documents[3].role = DocumentRole::disputed;
   corpus.documents[4].group = kNoGroup;
   FitOptions options;
-  options.num_topics = 3;
+  options.topic_count = 3;
   options.sweeps = 12;
   options.burn_in = 4;
   options.samples = 2;
@@ -62,7 +62,7 @@ TEST(ModelFileTest, RoundTripKeepsEverything) {
   const Model model = small_model();
   write_model(model, folder.file("m.loupe-model"));
   const Model back = read_model(folder.file("m.loupe-model"));
-  EXPECT_EQ(back.options.num_topics, 3U);
+  EXPECT_EQ(back.options.topic_count, 3U);
   EXPECT_EQ(back.options.alpha, model.options.alpha);
   EXPECT_EQ(back.corpus_fingerprint, model.corpus_fingerprint);
   EXPECT_EQ(back.vocabulary, model.vocabulary);

@@ -41,7 +41,7 @@ const Experiment& experiment() {
   static const Experiment e = [] {
     Experiment x;
     SyntheticCorpusSpec spec;
-    spec.num_topics = kTopics;
+    spec.topic_count = kTopics;
     spec.vocabulary_size = kWords;
     spec.num_documents = 2300;
     spec.document_length = 80;
@@ -52,7 +52,7 @@ const Experiment& experiment() {
     x.train = corpus_subset(x.sample.corpus, 0, 2000);
     x.held_out = corpus_subset(x.sample.corpus, 2000, 2300);
     FitOptions options;
-    options.num_topics = kTopics;
+    options.topic_count = kTopics;
     options.sweeps = 200;
     options.burn_in = 100;
     options.samples = 10;

@@ -14,7 +14,7 @@ namespace {
 
 Corpus drawn_corpus() {
   SyntheticCorpusSpec spec;
-  spec.num_topics = 6;
+  spec.topic_count = 6;
   spec.vocabulary_size = 80;
   spec.num_documents = 60;
   spec.document_length = 30;
@@ -44,7 +44,7 @@ class InvariantTest : public ::testing::TestWithParam<Case> {};
 TEST_P(InvariantTest, HoldAfterEverySweep) {
   const Corpus corpus = drawn_corpus();
   FitOptions options;
-  options.num_topics = 7;
+  options.topic_count = 7;
   options.sweeps = 25;
   options.burn_in = 5;
   options.samples = 3;

@@ -328,7 +328,7 @@ TEST(StudyReportTest, HeatmapHasOneCellPerGroupAndTopicAndMarksDistinctiveTopics
 TEST(StudyReportTest, TopicsTableTakesGroupSharesFromTheTopicsSection) {
   json results = with_provenance({});
   results["topics"] = {{"chains", 1},
-                       {"num_topics", 2},
+                       {"topic_count", 2},
                        {"topics", json::array({{{"chain", 1},
                                                 {"topic", 1},
                                                 {"share", 0.6},
