@@ -16,6 +16,7 @@ const std::vector<AddCommand>& command_registry();
 void add_ingest_command(CLI::App& app);
 void add_fit_command(CLI::App& app);
 void add_topics_command(CLI::App& app);
+void add_stability_command(CLI::App& app);
 void add_export_command(CLI::App& app);
 void add_demo_command(CLI::App& app);
 void add_compare_command(CLI::App& app);
