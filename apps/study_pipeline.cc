@@ -21,6 +21,8 @@
 #include "analysis/composite_scan.h"
 #include "analysis/group_comparison.h"
 #include "analysis/multiple_testing.h"
+#include "analysis/topic_alignment.h"
+#include "analysis/topic_coherence.h"
 #include "apps/progress_bar.h"
 #include "common/binary_io.h"
 #include "common/checksum.h"
@@ -756,6 +758,47 @@ json topics_json_of(const Model& model, const Corpus& corpus, std::size_t words)
   }
   out["group_shares"] = shares;
   out["group_shares_note"] = "mean topic shares of each group's known documents, chain 1";
+  {
+    // Each topic's coherence from document co-occurrence of its 10 most probable words (analysis/topic_coherence.h).
+    const std::size_t coherence_words = 10;
+    std::vector<std::vector<WordId>> top_words(k);
+    for (std::size_t t = 0; t < k; ++t) {
+      for (const auto& [word, weight] : model.top_words(0, t, coherence_words)) top_words[t].push_back(word);
+    }
+    const TopicCoherence coherence = topic_coherence(corpus, top_words);
+    for (auto& topic : out["topics"]) {
+      const auto t = topic["topic"].get<std::size_t>() - 1;
+      topic["coherence_npmi"] = coherence.npmi[t];
+      topic["coherence_umass"] = coherence.umass[t];
+    }
+    out["coherence_note"] =
+        "mean over pairs of each topic's 10 most probable words: NPMI (Bouma 2009) and UMass "
+        "(Mimno et al. 2011, mean rather than sum) from document co-occurrence in the corpus";
+  }
+  if (model.chains.size() >= 2) {
+    // Each topic of chain 1 with its stability across chains (analysis/topic_alignment.h).
+    const AlignmentOptions alignment_options;
+    const ChainAlignment alignment = align_chains(model, alignment_options);
+    std::size_t stable = 0;
+    for (auto& topic : out["topics"]) {
+      const auto t = topic["topic"].get<std::size_t>() - 1;
+      topic["stability"] = alignment.stability[t];
+      topic["stable"] = static_cast<bool>(alignment.stable[t]);
+      stable += alignment.stable[t] ? 1 : 0;
+    }
+    json redundant = json::array();
+    const double redundancy_threshold = 0.5;
+    for (const auto& p : redundant_topic_pairs(model, 0, redundancy_threshold)) {
+      redundant.push_back({{"topic_a", p.topic_a + 1}, {"topic_b", p.topic_b + 1}, {"hellinger", p.hellinger}});
+    }
+    out["stability"] = {{"stable_topics", stable},
+                        {"stable_threshold", alignment_options.stable_threshold},
+                        {"redundancy_threshold", redundancy_threshold},
+                        {"redundant_pairs", redundant},
+                        {"note",
+                         "each chain's topics matched to chain 1's by the Hungarian algorithm on Hellinger distances; "
+                         "stability = mean similarity (1 - Hellinger) of the matched topics over the other chains"}};
+  }
   return out;
 }
 

@@ -459,7 +459,12 @@ Section StudyReport::topics_section() {
                                   ": share of all tokens, prior weight alpha, most probable words" +
                                   (shares.empty() ? "" : ", and each group's mean share")) +
                       "</caption>";
-  std::vector<std::string> columns{"topic", "share", "alpha", "top words (p(word | topic))"};
+  const bool with_stability = list[0].contains("stability");
+  std::vector<std::string> columns{"topic", "share", "alpha"};
+  if (with_stability) columns.push_back("stability across chains");
+  const bool with_coherence = list[0].contains("coherence_npmi");
+  if (with_coherence) columns.push_back("coherence (NPMI)");
+  columns.push_back("top words (p(word | topic))");
   for (const auto& [name, values] : shares) columns.push_back(name);
   table += header_row(columns) + "<tbody>";
   for (const auto& t : list) {
@@ -474,7 +479,13 @@ Section StudyReport::topics_section() {
     }
     bars.push_back({label, short_words, number(t, "share")});
     table += "<tr>" + cell(number_label) + cell(format_percent(number(t, "share")), true) +
-             cell(format_number(number(t, "alpha")), true) + cell(words);
+             cell(format_number(number(t, "alpha")), true);
+    if (with_stability) {
+      const bool stable = t.contains("stable") && t["stable"].is_boolean() && t["stable"].get<bool>();
+      table += cell(format_fixed(number(t, "stability"), 2) + (stable ? "" : " (unstable)"), true);
+    }
+    if (with_coherence) table += cell(format_fixed(number(t, "coherence_npmi"), 3), true);
+    table += cell(words);
     const double topic = number(t, "topic");
     for (const auto& [name, values] : shares) {
       const bool known = topic >= 1 && static_cast<std::size_t>(topic) <= values.size();
@@ -486,7 +497,15 @@ Section StudyReport::topics_section() {
   s.body += paragraph(
       "A topic is a set of words that tend to occur together; each document is a mixture of topics. "
       "The bars give each topic's share of all word tokens; the table adds each group's mean share "
-      "of the topic.");
+      "of the topic." +
+      std::string(with_stability
+                      ? " Stability is the mean similarity (1 - Hellinger) of the topic to its match in every "
+                        "other chain (Hungarian algorithm); an unstable topic does not recur in every chain, so "
+                        "no conclusion should rest on it alone."
+                      : "") +
+      std::string(with_coherence ? " Coherence (NPMI, from -1 to 1) is higher when a topic's top words occur in the "
+                                   "same documents."
+                                 : ""));
   s.body += figure(report::topics_svg(bars),
                    "Topics of chain " + format_number(first_chain) +
                        " with their share of all tokens and their most probable words.",
