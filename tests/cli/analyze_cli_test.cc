@@ -111,6 +111,17 @@ void AnalyzeCliTest::check_files_and_keys() {
     for (const auto& s : shares) sum += s.get<double>();
     EXPECT_NEAR(sum, 1.0, 1e-4) << group;  // mean of distributions
   }
+  // Each topic carries its stability across the 4 chains and its coherence (the
+  // office themes' stability at 1000 sweeps is checked in stability_cli_test.cc).
+  for (const auto& topic : results()["topics"]["topics"]) {
+    const double stability = topic.at("stability");
+    EXPECT_GE(stability, 0.0);
+    EXPECT_LE(stability, 1.0);
+    EXPECT_EQ(topic.at("stable").get<bool>(), stability >= 0.8);
+    EXPECT_GE(topic.at("coherence_npmi").get<double>(), -1.0);
+    EXPECT_LE(topic.at("coherence_npmi").get<double>(), 1.0);
+  }
+  EXPECT_TRUE(results()["topics"]["stability"]["redundant_pairs"].is_array());
   // The terminal summary leads with what holds in all chains, and carries the cautions.
   EXPECT_EQ(output_.find("Conclusions that hold in all chains:"), output_.find("Conclusions"));
   EXPECT_THAT(output_, HasSubstr("statistical evidence, not proof"));

@@ -350,6 +350,30 @@ TEST(StudyReportTest, TopicsTableTakesGroupSharesFromTheTopicsSection) {
   EXPECT_EQ(count_of(heatmap, "class=\"interval\""), 0u);
 }
 
+TEST(StudyReportTest, TopicsTableShowsStabilityAndCoherenceBesideTheWords) {
+  json results = with_provenance({});
+  const auto topic = [](int number, double stability, bool stable, double npmi) {
+    return json{{"chain", 1},
+                {"topic", number},
+                {"share", 0.5},
+                {"alpha", 0.1},
+                {"stability", stability},
+                {"stable", stable},
+                {"coherence_npmi", npmi},
+                {"words", json::array({{{"word", "w" + std::to_string(number)}, {"weight", 0.2}}})}};
+  };
+  results["topics"] = {{"chains", 4},
+                       {"topic_count", 2},
+                       {"topics", json::array({topic(1, 0.92, true, 0.417), topic(2, 0.31, false, 0.066)})}};
+  const std::string html = render_study_report(results);
+  EXPECT_THAT(html, HasSubstr("stability across chains</th>"));
+  EXPECT_THAT(html, HasSubstr("coherence (NPMI)</th>"));
+  EXPECT_THAT(html, HasSubstr(">0.92</td>"));
+  EXPECT_THAT(html, HasSubstr(">0.31 (unstable)</td>"));
+  EXPECT_THAT(html, HasSubstr(">0.066</td>"));
+  EXPECT_EQ(count_of(html, "(unstable)"), 1u);
+}
+
 TEST(StudyReportTest, GraphDrawsEveryNodeAndEdgeWithItsCommunities) {
   json nodes = json::array();
   for (int i = 0; i < 7; ++i) {
