@@ -28,11 +28,12 @@ test: build
 	cd $(BUILD) && ctest --output-on-failure -j$(JOBS) --timeout 900
 
 # Unit and end-to-end tests under AddressSanitizer and UndefinedBehaviorSanitizer
-# (the heavy reference cross-checks, named *Reference*, run in `make test` only).
+# (the heavy reference cross-checks, named *Reference*, and the mpirun checks, named
+# Mpi*, whose Open MPI allocations LeakSanitizer reports, run in `make test` only).
 sanitize: deps
 	cmake -S . -B $(ASAN_BUILD) -DCMAKE_BUILD_TYPE=RelWithDebInfo -DLOUPE_SANITIZE=ON -DLOUPE_WERROR=$(WERROR) -DLOUPE_BUILD_BENCH=OFF $(CMAKE_ARGS)
 	cmake --build $(ASAN_BUILD) -j$(JOBS)
-	cd $(ASAN_BUILD) && ASAN_OPTIONS=detect_leaks=1 UBSAN_OPTIONS=print_stacktrace=1 ctest --output-on-failure -j$(JOBS) -E 'Reference' --timeout 900
+	cd $(ASAN_BUILD) && ASAN_OPTIONS=detect_leaks=1 UBSAN_OPTIONS=print_stacktrace=1 ctest --output-on-failure -j$(JOBS) -E 'Reference|Mpi' --timeout 900
 
 bench: build
 	./bench/run-benchmarks.sh $(BUILD)

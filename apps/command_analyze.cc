@@ -7,6 +7,7 @@
 #include <sstream>
 #include <thread>
 
+#include "analysis/topic_count_sweep.h"
 #include "apps/commands.h"
 #include "apps/study_pipeline.h"
 #include "common/error.h"
@@ -19,6 +20,7 @@ struct AnalyzeArguments {
   std::string output;
   std::string study_file;
   std::string alpha;
+  std::string sweep_topics;
   bool overwrite = false;
   bool quiet = false;
   std::size_t threads = std::max(1U, std::thread::hardware_concurrency());
@@ -159,6 +161,18 @@ void add_study_options(CLI::App& cmd, AnalyzeArguments& a) {
         fit);
   track(cmd.add_option("--topic-words", s.topic_words, "Top words listed per topic")->capture_default_str(), fit);
 
+  const char* sweep = "Choosing the number of topics (as loupe sweep), before the fit";
+  track(cmd.add_option("--sweep-topics", a.sweep_topics,
+                       "Fit these numbers of topics first and report a suggested K (e.g. 5:40:5); the study's model "
+                       "still uses --topics"),
+        sweep);
+  track(cmd.add_option("--sweep-chains", s.sweep.chains, "Chains at every K of the sweep (at least 2)")
+            ->capture_default_str(),
+        sweep);
+  track(cmd.add_option("--sweep-sweeps", s.sweep.sweeps, "Gibbs sweeps per chain at every K of the sweep")
+            ->capture_default_str(),
+        sweep);
+
   const char* compare = "Comparing groups (as loupe compare)";
   track(cmd.add_option("--compare-permutations", s.compare.permutations,
                        "Permutations per test (default: --permutations)"),
@@ -269,6 +283,7 @@ StudyOptions options_from_command_line(const CLI::App& cmd, AnalyzeArguments& a)
   s.scan.none_level = s.attribute.none_level;
   s.graph.threshold_graph = cmd.count("--max-distance") > 0;
   if (!a.alpha.empty()) s.fit.alpha = parse_alpha(a.alpha);
+  if (!a.sweep_topics.empty()) s.sweep.topics = parse_topic_counts(a.sweep_topics, "--sweep-topics");
   s.source = absolute(a.source);
   s.ingest.keep_words_file = absolute(s.ingest.keep_words_file);
   s.ingest.drop_words_file = absolute(s.ingest.drop_words_file);

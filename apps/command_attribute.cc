@@ -9,6 +9,7 @@
 
 #include "analysis/attribution.h"
 #include "analysis/attribution_cautions.h"
+#include "analysis/chain_agreement.h"
 #include "analysis/test_record.h"
 #include "apps/commands.h"
 #include "common/binary_io.h"
@@ -55,8 +56,10 @@ std::string padded(const std::string& text, std::size_t width) {
   return characters >= width ? text + " " : text + std::string(width - characters, ' ');
 }
 
+// "3 of 4 chains: most chains": how many chains back a verdict, and what that agreement is called.
 std::string of_chains(std::size_t count, std::size_t chains) {
-  return std::to_string(count) + " of " + std::to_string(chains) + (chains == 1 ? " chain" : " chains");
+  return std::to_string(count) + " of " + std::to_string(chains) + (chains == 1 ? " chain" : " chains") +
+         (chains == 1 ? "" : ": " + agreement_label(agreement_of(count, chains)));
 }
 
 void print_document(const Attribution& a, const DisputedDocumentResult& d, std::ostream& out) {

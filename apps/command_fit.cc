@@ -12,10 +12,13 @@
 #include <thread>
 
 #include "apps/commands.h"
+#include "apps/mpi_session.h"
 #include "apps/progress_bar.h"
 #include "common/error.h"
+#include "common/process_group.h"
 #include "corpus/corpus_file.h"
 #include "model/checkpoint.h"
+#include "model/count_merge.h"
 #include "model/fit.h"
 #include "model/gibbs_sampler.h"
 #include "model/model_file.h"
@@ -106,12 +109,88 @@ void take_options_from_checkpoint(const CLI::App& cmd, FitArguments& args) {
   if (unset("--checkpoint")) o.checkpoint_path = args.resume;
 }
 
+// Under mpirun: every process reads its share of the documents and samples it;
+// the counts are summed after every sweep; process 1 (rank 0) writes the model.
+void run_shared_fit(FitArguments& args, ProcessGroup& group) {
+  FitOptions& options = args.options;
+  const bool main_process = group.rank() == 0;
+  CorpusShare share;
+  // Any process that cannot read its share, or a setting no process can fit with,
+  // stops every process with the message (never one left waiting for the others).
+  run_together(group, [&] {
+    if (!args.resume.empty() || options.checkpoint_every > 0) {
+      throw Error(
+          "checkpoints (--checkpoint-every, --resume) are not available when the fit is spread over several "
+          "processes (mpirun). Fit without them, or without mpirun.");
+    }
+    share = read_corpus_share(args.corpus, group.rank(), group.size(), /*whole_corpus=*/main_process);
+    validate_fit_options(options, share.total_documents, share.total_tokens);
+  });
+  const double tokens = static_cast<double>(share.total_tokens);
+  ProgressBar bar("fitting", args.quiet || !main_process);
+  FitControl control;
+  control.stop_requested = &g_stop_requested;
+  control.on_progress = [&](const FitProgress& p) {
+    std::string detail = "sweep " + std::to_string(p.sweep) + "/" + std::to_string(p.sweeps) + ", " +
+                         millions(p.tokens_per_second) + " tokens/s";
+    if (std::isfinite(p.log_likelihood)) detail += ", log p(w,z)/token " + fixed(p.log_likelihood / tokens, 4);
+    bar.update(p.sweep, p.sweeps, detail);
+  };
+  Model model;
+  {
+    InterruptGuard guard;
+    model = fit_model_shared(share, group, options, control);
+  }
+  bar.finish();
+  if (!main_process) return;
+  write_model(model, args.output);
+  if (args.quiet) return;
+
+  const auto memory = estimate_fit_memory(share.corpus, options);
+  const SamplerKind kind = resolve_sampler(options.sampler, options.topic_count);
+  const double pools = kind == SamplerKind::metropolis_hastings ? 2.0 * tokens * options.chains : 0.0;
+  const double summed = static_cast<double>(options.chains) *
+                        static_cast<double>(SharedCountMerger::bytes_summed(
+                            static_cast<std::uint32_t>(share.corpus.vocabulary_size()), options.topic_count));
+  std::cout << "Fitted " << options.topic_count << " topics on " << format_count(share.total_documents)
+            << " documents (" << format_count(share.total_tokens) << " tokens) spread over " << group.size()
+            << " processes: " << options.chains << (options.chains == 1 ? " chain" : " chains") << " x "
+            << options.sweeps << " sweeps in " << fixed(model.timing.seconds, 1) << " s, "
+            << millions(model.timing.tokens_per_second) << " tokens/s with " << options.threads
+            << (options.threads == 1 ? " thread" : " threads") << " a process.\n";
+  std::cout << "Sampler: "
+            << (kind == SamplerKind::exact
+                    ? std::string("exact conditional")
+                    : "Metropolis-Hastings, " + std::to_string(options.mh_steps) + " steps a token")
+            << "; process 1 holds " << format_count(share.corpus.num_tokens()) << " tokens, memory "
+            << format_bytes(
+                   memory.token_state_bytes_per_token * static_cast<double>(share.corpus.num_tokens()) +
+                   static_cast<double>(memory.count_table_bytes + memory.workspace_bytes + memory.estimate_bytes) +
+                   pools)
+            << "; each sweep sums " << format_bytes(summed) << " of counts across the processes.\n";
+  for (std::size_t c = 0; c < model.chains.size(); ++c) {
+    const auto& chain = model.chains[c];
+    std::cout << "Chain " << c + 1 << ": log p(w,z) " << fixed(chain.trace.back().log_likelihood, 1) << " ("
+              << fixed(chain.trace.back().log_likelihood / tokens, 4) << " a token) at sweep "
+              << chain.trace.back().sweep << "\n";
+  }
+  if (std::isfinite(model.rhat)) {
+    std::cout << "Gelman-Rubin R-hat of the log-likelihood traces after burn-in: " << fixed(model.rhat, 3) << "\n";
+  }
+  std::cout << "Wrote " << args.output << "\n";
+}
+
 void run_fit(const CLI::App& cmd, FitArguments& args) {
   FitOptions& options = args.options;
   if (!args.alpha.empty()) options.alpha = parse_alpha(args.alpha);
   options.sampler = args.sampler == "exact" ? SamplerKind::exact
                     : args.sampler == "mh"  ? SamplerKind::metropolis_hastings
                                             : SamplerKind::automatic;
+  if (ProcessGroup* group = processes()) {
+    if (cmd.count("--threads") == 0) options.threads = static_cast<std::uint32_t>(default_threads());
+    run_shared_fit(args, *group);
+    return;
+  }
   if (!args.resume.empty()) take_options_from_checkpoint(cmd, args);
   if (options.checkpoint_every > 0 && options.checkpoint_path.empty())
     options.checkpoint_path = args.output + ".checkpoint";
@@ -187,12 +266,15 @@ void add_fit_command(CLI::App& app) {
   auto args = std::make_shared<FitArguments>();
   auto& o = args->options;
   o.threads = std::max(1U, std::thread::hardware_concurrency());
+  o.chains = 4;  // several chains by default, so that every conclusion can be checked across them
   auto* cmd = app.add_subcommand("fit",
                                  "Fit one LDA topic model shared by all groups of a corpus.\n"
-                                 "  Example: loupe fit letters.corpus -o letters.model --topics 30 --chains 4");
-  cmd->add_option("CORPUS", args->corpus, "The corpus file (from `loupe ingest`)")
-      ->required()
-      ->check(CLI::ExistingFile);
+                                 "  Example: loupe fit letters.corpus -o letters.model --topics 30 --chains 4\n"
+                                 "  On several machines (built with MPI): mpirun -np 4 loupe fit letters.corpus -o "
+                                 "letters.model");
+  auto* corpus_option = cmd->add_option("CORPUS", args->corpus, "The corpus file (from `loupe ingest`)")->required();
+  // Under mpirun a missing file is reported by every process together (run_shared_fit).
+  if (processes() == nullptr) corpus_option->check(CLI::ExistingFile);
   cmd->add_option("-o,--output", args->output, "The model file to write")->required();
   cmd->add_option("--topics", o.topic_count, "Number of topics K")->capture_default_str();
   cmd->add_option("--sweeps", o.sweeps, "Gibbs sweeps per chain")->capture_default_str();

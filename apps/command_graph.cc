@@ -6,8 +6,13 @@
 #include <iomanip>
 #include <iostream>
 #include <memory>
+#include <string>
+#include <utility>
+#include <vector>
 
+#include "analysis/chain_agreement.h"
 #include "apps/commands.h"
+#include "apps/mpi_session.h"
 #include "apps/progress_bar.h"
 #include "common/binary_io.h"
 #include "common/error.h"
@@ -37,6 +42,7 @@ struct GraphArguments {
   std::size_t chain = 1;  // numbered from 1, as `loupe topics` shows chains
   std::size_t permutations = 999;
   std::uint64_t seed = 1;
+  double level = 0.05;
   std::string strata;
   double resolution = 1.0;
   std::size_t threads = 0;
@@ -92,6 +98,7 @@ void run_graph(GraphArguments& a) {
   options.seed = a.seed;
   options.resolution = a.resolution;
   options.threads = a.threads;
+  options.processes = processes();  // under mpirun the processes share the group-mixing permutations
   if (!a.strata.empty()) {
     if (a.corpus.empty()) throw Error("--strata needs --corpus: metadata columns live in the corpus, not the model.");
     options.strata = a.strata;
@@ -102,12 +109,14 @@ void run_graph(GraphArguments& a) {
       build_graph_study(model, a.model, table, options, [&](std::size_t c, std::size_t done, std::size_t total) {
         if (c != bar_chain) {
           if (bar) bar->finish();
-          bar = std::make_unique<ProgressBar>("chain " + std::to_string(c) + ": distances", a.quiet);
+          bar = std::make_unique<ProgressBar>("chain " + std::to_string(c) + ": distances",
+                                              a.quiet || !is_main_process());
           bar_chain = c;
         }
         bar->update(static_cast<double>(done), static_cast<double>(total), "blocks");
       });
   if (bar) bar->finish();
+  if (!is_main_process()) return;  // process 1 writes and prints
   const std::vector<GraphChainResult>& results = study.chains;
   DocumentGraph& exported = study.exported;
   const auto groups = table.group_labels();
@@ -162,6 +171,27 @@ void run_graph(GraphArguments& a) {
       }
     }
   }
+  // Each group test's conclusion across chains: above chance at the level, or not, on how many chains.
+  std::vector<std::string> modularity_conclusions, share_conclusions;
+  for (const auto& r : results) {
+    if (!r.tested) continue;
+    const auto conclude = [&](const PermutationTest& t) {
+      const bool above = std::isfinite(t.p_value) && t.p_value <= a.level && t.statistic > t.null_mean;
+      return above ? "above chance" : "not above chance";
+    };
+    modularity_conclusions.emplace_back(conclude(r.mixing.modularity));
+    share_conclusions.emplace_back(conclude(r.mixing.same_group_share));
+  }
+  if (results.size() > 1 && !share_conclusions.empty()) {
+    std::cout << "  across chains (p <= " << std::defaultfloat << a.level << std::fixed << "):\n";
+    for (const auto& [name, conclusions] :
+         {std::pair{std::string("modularity of the groups"), &modularity_conclusions},
+          std::pair{std::string("share of neighbours in the own group"), &share_conclusions}}) {
+      const ModalConclusion modal = modal_conclusion(*conclusions);
+      std::cout << "    " << std::left << std::setw(40) << name << std::right << modal.conclusion << " on "
+                << describe_backing(modal.backing, results.size()) << " (" << agreement_label(modal.agreement) << ")\n";
+    }
+  }
   if (can_test) {
     std::cout << "  p-values: " << a.permutations << " permutations of the group labels"
               << (a.strata.empty() ? "" : " within " + a.strata) << ", seed " << a.seed << "\n";
@@ -201,6 +231,9 @@ void add_graph_command(CLI::App& app) {
   cmd->add_option("--chain", args->chain, "The chain whose graph is written to files (tests run on every chain)")
       ->capture_default_str();
   cmd->add_option("--permutations", args->permutations, "Permutations for the group tests (0: no tests)")
+      ->capture_default_str();
+  cmd->add_option("--level", args->level, "A group test finds clustering on a chain when p is at or below this")
+      ->check(CLI::Range(1e-9, 0.5))
       ->capture_default_str();
   cmd->add_option("--seed", args->seed, "Seed of the permutations, of Louvain's visiting order and of the layout")
       ->capture_default_str();

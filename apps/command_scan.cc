@@ -9,6 +9,7 @@
 #include <memory>
 
 #include "analysis/attribution_cautions.h"
+#include "analysis/chain_agreement.h"
 #include "analysis/composite_scan.h"
 #include "apps/commands.h"
 #include "common/binary_io.h"
@@ -90,7 +91,14 @@ void print_text(const CompositeScan& scan, const TextScan& t, std::ostream& out)
       out << "; chains find " << t.fewest_change_points << " to " << t.most_change_points << " change points";
     }
   }
-  out << ".\n\n";
+  out << ".\n";
+  if (chains > 1) {
+    const bool composite = 2 * t.chains_with_change > chains;
+    const std::size_t backing = composite ? t.chains_with_change : chains - t.chains_with_change;
+    out << "Across chains: " << (composite ? "composite (a change of topics)" : "no change of topics") << " on "
+        << describe_backing(backing, chains) << " (" << agreement_label(agreement_of(backing, chains)) << ").\n";
+  }
+  out << "\n";
 
   const ChainScan& first = t.chains.front();
   if (first.segments.empty()) return;

@@ -25,5 +25,6 @@ void add_near_duplicates_command(CLI::App& app);
 void add_attribute_command(CLI::App& app);
 void add_scan_command(CLI::App& app);
 void add_analyze_command(CLI::App& app);
+void add_sweep_command(CLI::App& app);
 
 }  // namespace loupe::cli

@@ -1,14 +1,36 @@
 // The `loupe` command line: one verb a command, each in apps/command_*.cc.
 // It parses arguments, calls the library and prints; no statistics live here.
+// Under mpirun (built with MPI) every process runs this main; apps/mpi_session.h.
 #include <iostream>
+#include <optional>
 
 #include <CLI/CLI.hpp>
 
 #include "apps/commands.h"
+#include "apps/mpi_session.h"
 #include "common/error.h"
+#include "common/process_group.h"
 #include "common/version.h"
 
+namespace {
+
+void print_error(const std::string& message) {
+  const std::string label = loupe::cli::process_label();
+  // One write, so that the lines of several processes sharing a terminal do not interleave.
+  std::cerr << "loupe: error" + (label.empty() ? std::string() : " (" + label + ")") + ": " + message + "\n"
+            << std::flush;
+}
+
+}  // namespace
+
 int main(int argc, char** argv) {
+  std::optional<loupe::cli::MpiSession> mpi;
+  try {
+    mpi.emplace(&argc, &argv);
+  } catch (const loupe::Error& e) {
+    print_error(e.what());
+    return 1;
+  }
   CLI::App app{
       "loupe: compare grouped text collections with one shared LDA topic model.\n"
       "Run `loupe COMMAND --help` for the options of a command.",
@@ -20,9 +42,16 @@ int main(int argc, char** argv) {
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {
-    return app.exit(e);
+    const int code = app.exit(e);
+    if (code != 0) loupe::cli::stop_other_processes(code);
+    return code;
+  } catch (const loupe::CollectiveError& e) {
+    // Every process met it together: each says so and ends cleanly.
+    print_error(e.what());
+    return 1;
   } catch (const loupe::Error& e) {
-    std::cerr << "loupe: error: " << e.what() << "\n";
+    print_error(e.what());
+    loupe::cli::stop_other_processes(1);
     return 1;
   }
   return 0;

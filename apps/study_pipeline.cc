@@ -14,15 +14,18 @@
 #include <cstdio>
 #include <ctime>
 #include <filesystem>
+#include <map>
 #include <memory>
 #include <set>
 
 #include "analysis/attribution_cautions.h"
+#include "analysis/chain_agreement.h"
 #include "analysis/composite_scan.h"
 #include "analysis/group_comparison.h"
 #include "analysis/multiple_testing.h"
 #include "analysis/topic_alignment.h"
 #include "analysis/topic_coherence.h"
+#include "analysis/topic_count_sweep.h"
 #include "apps/progress_bar.h"
 #include "common/binary_io.h"
 #include "common/checksum.h"
@@ -141,6 +144,16 @@ class SectionReader {
       out.push_back(item.get<double>());
     }
   }
+  void assign(const json& v, const std::string& key, std::vector<std::uint32_t>& out) const {
+    if (!v.is_array()) wrong(key, v, "a list of whole numbers");
+    out.clear();
+    for (const auto& item : v) {
+      if (!item.is_number_unsigned() || item.get<std::uint64_t>() > 0xFFFFFFFFull) {
+        wrong(key, v, "a list of whole numbers");
+      }
+      out.push_back(item.get<std::uint32_t>());
+    }
+  }
   void assign(const json& v, const std::string& key, std::vector<std::string>& out) const {
     if (!v.is_array()) wrong(key, v, "a list of strings");
     out.clear();
@@ -184,6 +197,7 @@ json study_to_json(const StudyOptions& o) {
             {"drop_words_file", i.drop_words_file},
             {"segment_words", i.segment_words},
             {"segment_disputed_only", i.segment_disputed_only}}},
+          {"sweep", {{"topics", o.sweep.topics}, {"chains", o.sweep.chains}, {"sweeps", o.sweep.sweeps}}},
           {"fit",
            {{"topics", f.topic_count},
             {"sweeps", f.sweeps},
@@ -275,6 +289,13 @@ StudyOptions study_from_json(const json& root, const std::string& file) {
     r.read("drop_words_file", i.drop_words_file);
     r.read("segment_words", i.segment_words);
     r.read("segment_disputed_only", i.segment_disputed_only);
+    r.finish();
+  }
+  if (const json* s = top.section("sweep")) {
+    SectionReader r(*s, "sweep", file);
+    r.read("topics", o.sweep.topics);
+    r.read("chains", o.sweep.chains);
+    r.read("sweeps", o.sweep.sweeps);
     r.finish();
   }
   if (const json* s = top.section("fit")) {
@@ -425,7 +446,49 @@ void validate_study(const StudyOptions& o) {
   if (!(o.level > 0 && o.level < 1)) {
     throw Error("--level must be in (0, 1) (0.05 is usual); got " + std::to_string(o.level) + ".");
   }
+  if (!o.sweep.topics.empty()) {
+    if (o.sweep.chains < 2) {
+      throw Error("--sweep-chains " + std::to_string(o.sweep.chains) +
+                  ": the sweep measures how stable topics are across chains, which needs at least 2.");
+    }
+    if (o.sweep.sweeps < 10) {
+      throw Error("--sweep-sweeps " + std::to_string(o.sweep.sweeps) + " is too few to fit a model; use 100 or more.");
+    }
+    for (const auto k : o.sweep.topics) {
+      if (k < 2) {
+        throw Error("--sweep-topics: K = " + std::to_string(k) + " is too few; a topic model needs at least 2 topics.");
+      }
+    }
+  }
 }
+
+namespace {
+
+// The fit options of the sweep at every K: the study's fit with the sweep's chains and sweeps, burn-in the
+// first 40% of them, and a symmetric prior (50/K unless one value is given).
+TopicCountSweepOptions resolved_sweep(const StudyOptions& o, std::size_t threads) {
+  TopicCountSweepOptions sweep;
+  sweep.topic_counts = o.sweep.topics;
+  std::sort(sweep.topic_counts.begin(), sweep.topic_counts.end());
+  sweep.fit = o.fit;
+  sweep.fit.chains = o.sweep.chains;
+  sweep.fit.sweeps = o.sweep.sweeps;
+  sweep.fit.burn_in = o.sweep.sweeps * 2 / 5;
+  sweep.fit.samples = std::min<std::uint32_t>(5, std::max<std::uint32_t>(1, o.fit.samples));
+  sweep.fit.sample_lag =
+      std::max<std::uint32_t>(1, std::min<std::uint32_t>(10, (o.sweep.sweeps - sweep.fit.burn_in) / sweep.fit.samples));
+  sweep.fit.threads = 1;
+  sweep.fit.checkpoint_every = 0;
+  sweep.fit.checkpoint_path.clear();
+  sweep.fit.sampler = o.sampler == "exact" ? SamplerKind::exact
+                      : o.sampler == "mh"  ? SamplerKind::metropolis_hastings
+                                           : SamplerKind::automatic;
+  if (sweep.fit.alpha.size() > 1) sweep.fit.alpha.clear();  // K values fit one K only
+  sweep.parallel_fits = std::max<std::size_t>(threads, 1);
+  return sweep;
+}
+
+}  // namespace
 
 // ---------------------------------------------------------------------------
 // Running a study.
@@ -496,9 +559,7 @@ std::string of_chains(std::size_t count, std::size_t chains) {
 
 // "all chains", "most chains" or "split": how many chains back a statement.
 std::string agreement(std::size_t backing, std::size_t chains) {
-  if (backing == chains) return "all chains";
-  if (2 * backing > chains) return "most chains";
-  return "split";
+  return agreement_label(agreement_of(backing, chains));
 }
 
 class Stopwatch {
@@ -950,6 +1011,52 @@ void conclude_groups_differ(const GroupComparison& comparison, double level, std
   }
 }
 
+// Topics more common in a group than in the rest (q <= level, a positive median difference) on at least
+// half the chains, topics numbered as chain 1's (aligned on the others); the three largest per group.
+void conclude_distinctive_topics(const GroupComparison& comparison, const Model& model, double level,
+                                 std::vector<Conclusion>& out) {
+  if (!comparison.topics_aligned && comparison.chains.size() > 1) return;  // topic numbers differ by chain
+  const std::size_t chains = comparison.chains.size();
+  std::map<std::string, std::vector<const ChainSummary*>> by_group;
+  std::vector<const ChainSummary*> summaries;
+  std::vector<ChainSummary> single;  // one chain: the summaries leave out per-topic tests
+  if (!comparison.topics_aligned) {
+    std::vector<TestRecord> per_topic;
+    for (const auto& r : comparison.chains.front().records) {
+      if (r.topic >= 0) per_topic.push_back(r);
+    }
+    single = summarize_by_test(per_topic, level);
+    for (const auto& s : single) summaries.push_back(&s);
+  } else {
+    for (const auto& s : comparison.summaries) summaries.push_back(&s);
+  }
+  const std::string suffix = " vs rest";
+  for (const ChainSummary* s : summaries) {
+    if (s->method != "distinctive topic" || s->topic < 0 || !(s->statistic.median > 0)) continue;
+    if (s->significance.conclusion.rfind("p <= ", 0) != 0 || 2 * s->significance.backing < chains) continue;
+    if (s->comparison.size() <= suffix.size()) continue;
+    by_group[s->comparison.substr(0, s->comparison.size() - suffix.size())].push_back(s);
+  }
+  for (auto& [group, list] : by_group) {
+    std::stable_sort(list.begin(), list.end(), [](const ChainSummary* a, const ChainSummary* b) {
+      if (a->significance.backing != b->significance.backing) return a->significance.backing > b->significance.backing;
+      return a->statistic.median > b->statistic.median;
+    });
+    for (std::size_t i = 0; i < std::min<std::size_t>(list.size(), 3); ++i) {
+      const ChainSummary& s = *list[i];
+      std::string words;
+      for (const auto& [word, p] : model.top_words(0, static_cast<std::size_t>(s.topic), 4)) {
+        words += (words.empty() ? "" : ", ") + model.vocabulary[word];
+      }
+      out.push_back({"Topic " + std::to_string(s.topic + 1) + " (" + words + ") is more common in " + group +
+                         " than in the other groups: difference in mean share " +
+                         range_text(s.statistic.min, s.statistic.max) + ", q <= " + short_number(level) + " in " +
+                         describe_backing(s.significance.backing, chains) + ".",
+                     agreement(s.significance.backing, chains)});
+    }
+  }
+}
+
 void conclude_attribution(const Attribution& a, std::vector<Conclusion>& out) {
   for (const auto& d : a.documents) {
     const std::size_t chains = std::max<std::size_t>(d.chains.size(), 1);
@@ -1081,7 +1188,7 @@ StudyOutcome run_study(const StudyOptions& options, const StudyRunSettings& sett
   const SourceListing listing = list_sources(options.source, ingest.sources);
   StudyFolder folder(settings.output_dir, settings.overwrite);
   InterruptHandler interrupt;
-  StageProgress stages(8, settings.quiet);
+  StageProgress stages(options.sweep.topics.empty() ? 8 : 9, settings.quiet);
   StudyOutcome outcome;
   outcome.output_dir = settings.output_dir;
   outcome.replaced_previous = folder.replacing();
@@ -1104,7 +1211,24 @@ StudyOutcome run_study(const StudyOptions& options, const StudyRunSettings& sett
   write_file_atomically(folder.file("ingest-summary.json"), results["corpus"].dump(2) + "\n");
   stage_seconds["ingest"] = watch.seconds();
 
-  // 2. Fit.
+  // 2. Choosing K (when asked), before the fit.
+  if (!options.sweep.topics.empty()) {
+    watch = Stopwatch();
+    TopicCountSweepOptions sweep_options = resolved_sweep(options, threads);
+    validate_sweep_options(sweep_options, corpus);
+    bar = &stages.start("sweeping K");
+    sweep_options.on_progress = [&](std::size_t done, std::size_t total, double work) {
+      bar->update(work, 1.0, std::to_string(done) + " of " + std::to_string(total) + " K values");
+    };
+    const TopicCountSweep sweep = sweep_topic_counts(corpus, sweep_options);
+    stages.finish();
+    if (g_interrupted.load())
+      throw Error("interrupted: the study was stopped while sweeping K and nothing was written.");
+    results["sweep"] = to_json(sweep);
+    stage_seconds["sweep"] = watch.seconds();
+  }
+
+  // 3. Fit.
   watch = Stopwatch();
   const FitOptions fit = resolved_fit(options);
   validate_fit_options(fit, corpus);
@@ -1131,7 +1255,7 @@ StudyOutcome run_study(const StudyOptions& options, const StudyRunSettings& sett
   results["topics"] = topics_json_of(model, corpus, options.topic_words);
   stage_seconds["fit"] = watch.seconds();
 
-  // 3. Compare.
+  // 4. Compare.
   watch = Stopwatch();
   stages.start("comparing groups");
   std::set<std::uint32_t> known_groups;
@@ -1151,6 +1275,7 @@ StudyOutcome run_study(const StudyOptions& options, const StudyRunSettings& sett
     compare.tests.anosim_max_documents = options.compare.anosim_limit;
     compare.include_disputed = options.compare.include_disputed;
     compare.strata_column = options.compare.strata;
+    compare.level = options.level;
     const GroupComparison comparison = compare_groups(model, &corpus, compare);
     results["compare"] = to_json(comparison);
     write_records_csv(folder.file("compare.csv"), comparison.all_records());
@@ -1161,13 +1286,14 @@ StudyOutcome run_study(const StudyOptions& options, const StudyRunSettings& sett
     }
     write_file_atomically(folder.file("group-profiles.csv"), profiles);
     conclude_groups_differ(comparison, options.level, conclusions);
+    conclude_distinctive_topics(comparison, model, options.level, conclusions);
   } else {
     skipped["compare"] = "fewer than two groups with known documents";
   }
   stages.finish();
   stage_seconds["compare"] = watch.seconds();
 
-  // 4. Attribute.
+  // 5. Attribute.
   watch = Stopwatch();
   stages.start("attributing disputed documents");
   if (count_disputed(corpus) == 0) {
@@ -1194,7 +1320,7 @@ StudyOutcome run_study(const StudyOptions& options, const StudyRunSettings& sett
   stages.finish();
   stage_seconds["attribute"] = watch.seconds();
 
-  // 5. Scan segmented disputed texts.
+  // 6. Scan segmented disputed texts.
   watch = Stopwatch();
   stages.start("scanning segmented texts");
   bool any_segmented_disputed = false;
@@ -1221,7 +1347,7 @@ StudyOutcome run_study(const StudyOptions& options, const StudyRunSettings& sett
   stages.finish();
   stage_seconds["scan"] = watch.seconds();
 
-  // 6. Graph.
+  // 7. Graph.
   watch = Stopwatch();
   bar = &stages.start("similarity graph");
   const DocumentTable table = document_table(corpus);
@@ -1261,7 +1387,7 @@ StudyOutcome run_study(const StudyOptions& options, const StudyRunSettings& sett
   stages.finish();
   stage_seconds["graph"] = watch.seconds();
 
-  // 7. Near-duplicates, among whole documents (segments joined back).
+  // 8. Near-duplicates, among whole documents (segments joined back).
   watch = Stopwatch();
   bar = &stages.start("near-duplicates");
   const JoinedCorpus joined = join_segments(corpus);
@@ -1289,7 +1415,7 @@ StudyOutcome run_study(const StudyOptions& options, const StudyRunSettings& sett
   stages.finish();
   stage_seconds["near_duplicates"] = watch.seconds();
 
-  // 8. Results, provenance and the report.
+  // 9. Results, provenance and the report.
   watch = Stopwatch();
   stages.start("writing the report");
   results["conclusions"] = conclusions_json(conclusions);

@@ -38,6 +38,13 @@ struct StudyOptions {
 
   std::size_t topic_words = 10;  // top words listed per topic
 
+  // Choosing K (as `loupe sweep`), run before the fit when `topics` lists K values; the fit keeps fit.topic_count.
+  struct Sweep {
+    std::vector<std::uint32_t> topics;  // empty: no sweep
+    std::uint32_t chains = 2;
+    std::uint32_t sweeps = 300;
+  } sweep;
+
   struct Compare {
     std::size_t permutations = 999;
     std::size_t bootstrap = 999;
@@ -83,7 +90,7 @@ struct StudyOptions {
   static FitOptions default_fit();
 };
 
-// The study file: {"study_format": 1, "source": ..., "ingest": {...}, "fit": {...}, "topics": {...},
+// The study file: {"study_format": 1, "source": ..., "ingest": {...}, "sweep": {...}, "fit": {...}, "topics": {...},
 // "compare": {...}, "attribute": {...}, "scan": {...}, "graph": {...}, "near_duplicates": {...},
 // "conclusions": {...}} with every option written out.
 nlohmann::json study_to_json(const StudyOptions& options);

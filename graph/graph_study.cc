@@ -27,6 +27,7 @@ GraphStudy build_graph_study(const Model& model, const std::string& model_name, 
   mixing.permutations = options.permutations;
   mixing.seed = options.seed;
   mixing.threads = options.threads;
+  mixing.processes = options.processes;
   if (!options.strata.empty()) {
     mixing.strata = table.metadata_labels(options.strata);
     mixing.strata_name = options.strata;

@@ -30,6 +30,8 @@ struct GraphStudyOptions {
   std::string strata;      // a metadata column of the table; "" = free permutations
   double resolution = 1.0;
   std::size_t threads = 0;  // 0: all cores; never changes the result
+  // Several processes (MPI ranks) share the group-mixing permutations; null: this process alone.
+  ProcessGroup* processes = nullptr;
 };
 
 struct GraphChainResult {

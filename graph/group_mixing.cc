@@ -111,12 +111,17 @@ GroupMixingResult test_group_mixing(const WeightedAdjacency& graph, const std::v
   const double observed_share = mean_same_group_share(graph, group, &result.document_share);
 
   const std::size_t permutations = options.permutations;
-  std::vector<double> null_q(permutations);
-  std::vector<double> null_share(permutations);
+  // This process's permutations [mine.begin, mine.end): all of them unless processes share them.
+  const IndexRange mine = options.processes != nullptr
+                              ? share_of(permutations, options.processes->rank(), options.processes->size())
+                              : IndexRange{0, permutations};
+  std::vector<double> null_q(mine.end - mine.begin);
+  std::vector<double> null_share(mine.end - mine.begin);
   std::size_t threads = options.threads;
   if (threads == 0) threads = std::max(1u, std::thread::hardware_concurrency());
   std::vector<std::vector<std::uint32_t>> scratch(threads, group);
-  ParallelRunner(threads).run_with_worker(permutations, [&](std::size_t p, std::size_t worker) {
+  ParallelRunner(threads).run_with_worker(mine.end - mine.begin, [&](std::size_t slot, std::size_t worker) {
+    const std::size_t p = mine.begin + slot;
     std::vector<std::uint32_t>& labels = scratch[worker];
     labels = group;
     Xoshiro256 random(derive_seed(options.seed, {static_cast<std::uint64_t>(p)}));
@@ -127,9 +132,14 @@ GroupMixingResult test_group_mixing(const WeightedAdjacency& graph, const std::v
         std::swap(labels[members[i - 1]], labels[members[j]]);
       }
     }
-    null_q[p] = group_modularity(graph, labels);
-    null_share[p] = mean_same_group_share(graph, labels);
+    null_q[slot] = group_modularity(graph, labels);
+    null_share[slot] = mean_same_group_share(graph, labels);
   });
+  if (options.processes != nullptr) {
+    // Every permutation's statistics, in permutation order, on every process.
+    null_q = options.processes->all_gather(std::span<const double>(null_q));
+    null_share = options.processes->all_gather(std::span<const double>(null_share));
+  }
 
   const auto summarise = [&](PermutationTest& test, double observed, const std::vector<double>& null) {
     test.sample_size = sample_size;

@@ -11,6 +11,7 @@
 
 #include <nlohmann/json.hpp>
 
+#include "common/process_group.h"
 #include "graph/document_graph.h"
 
 namespace loupe {
@@ -23,6 +24,9 @@ struct GroupMixingOptions {
   std::vector<std::uint32_t> strata;
   std::string strata_name;  // for the record, e.g. the metadata column
   std::size_t threads = 0;  // 0: all hardware threads. Never changes the result.
+  // Several processes (MPI ranks) share the permutations, each a contiguous range,
+  // and gather the statistics: every process gets the single-process result. Null: this process alone.
+  ProcessGroup* processes = nullptr;
 };
 
 // One record per test, in the shape permutation-test libraries report.

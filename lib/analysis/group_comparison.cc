@@ -1,6 +1,7 @@
 #include "analysis/group_comparison.h"
 
 #include "analysis/strata.h"
+#include "analysis/topic_alignment.h"
 #include "common/error.h"
 
 namespace loupe {
@@ -74,15 +75,20 @@ GroupComparison compare_groups(const Model& model, const Corpus* corpus, const G
       ++comparison.documents_compared;
     }
   }
+  ChainAlignment alignment;
+  comparison.topics_aligned = options.align_topics && model.chains.size() >= 2;
+  if (comparison.topics_aligned) alignment = align_chains(model);
   for (std::size_t chain = 0; chain < model.chains.size(); ++chain) {
-    const auto data = grouped_documents(model, chain, corpus, options);
+    auto data = grouped_documents(model, chain, corpus, options);
+    // Chain 1 is the reference, so its topics keep their numbers.
+    if (comparison.topics_aligned && chain > 0) data.theta = aligned_theta(model, alignment, chain);
     comparison.chains.push_back(run_group_tests(data, options.tests, static_cast<int>(chain)));
   }
-  std::vector<TestRecord> topic_free;
+  std::vector<TestRecord> summarised;
   for (const auto& r : comparison.all_records()) {
-    if (r.topic < 0) topic_free.push_back(r);
+    if (r.topic < 0 || comparison.topics_aligned) summarised.push_back(r);
   }
-  comparison.summaries = summarize_by_test(topic_free);
+  comparison.summaries = summarize_by_test(summarised, options.level);
   return comparison;
 }
 
@@ -102,6 +108,7 @@ nlohmann::json to_json(const GroupComparison& comparison) {
           {"disputed_left_out", comparison.disputed_left_out},
           {"without_group", comparison.without_group},
           {"strata", comparison.strata_column},
+          {"topics_aligned", comparison.topics_aligned},
           {"across_chains", summaries},
           {"chains", chains}};
 }

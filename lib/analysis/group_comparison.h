@@ -1,6 +1,6 @@
 // Comparing groups with a fitted model: the tests of analysis/group_tests.h on
-// every chain's document-topic shares, and each test's median and range across
-// chains. Disputed documents are left out of group tests unless asked for.
+// every chain's document-topic shares (topics aligned to chain 1's), and each
+// test's median, range and agreement across chains. Disputed documents are left out of group tests unless asked for.
 #pragma once
 
 #include <cstddef>
@@ -20,13 +20,18 @@ struct GroupComparisonOptions {
   GroupTestOptions tests;         // one seed for every chain, so chains differ by the model alone
   bool include_disputed = false;  // disputed documents with a group join their group
   std::string strata_column;      // a corpus metadata column; "" = free permutations
+  // With two or more chains, number every chain's topics as chain 1's (analysis/topic_alignment.h), so that
+  // a per-topic test means the same topic on every chain and can be summarised across chains.
+  bool align_topics = true;
+  double level = 0.05;  // a test's conclusion on a chain: p (adjusted p when it has one) <= level
 };
 
 struct GroupComparison {
   std::vector<GroupTestResults> chains;  // one per chain, in chain order
-  // Across chains, for the tests that do not name a topic (topic numbers are
-  // chain-specific until topics are aligned across chains).
+  // Across chains: every test when topics are aligned; otherwise those that do
+  // not name a topic (topic numbers are chain-specific until aligned).
   std::vector<ChainSummary> summaries;
+  bool topics_aligned = false;  // topic k of every chain is matched to topic k of chain 1
   std::size_t documents_compared = 0;
   std::size_t disputed_left_out = 0;
   std::size_t without_group = 0;

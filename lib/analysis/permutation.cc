@@ -10,6 +10,7 @@
 #include <utility>
 
 #include "common/error.h"
+#include "common/process_group.h"
 
 namespace loupe {
 namespace {
@@ -84,7 +85,7 @@ std::uint64_t distinct_arrangements(std::span<const int> labels, std::span<const
 
 LabelPermuter::LabelPermuter(std::vector<int> labels, std::vector<int> strata, const PermutationOptions& options,
                              const std::string& strata_name)
-    : observed_(std::move(labels)), seed_(options.seed) {
+    : observed_(std::move(labels)), seed_(options.seed), processes_(options.processes) {
   const std::size_t n = observed_.size();
   num_groups_ = static_cast<std::size_t>(num_labels(observed_));
   const auto num_strata = strata.empty() ? std::size_t{1} : static_cast<std::size_t>(num_labels(strata));
@@ -249,9 +250,18 @@ std::vector<std::uint64_t> count_exceedances(const LabelPermuter& permuter, std:
   const std::size_t total = permuter.count();
   batch_size = std::max<std::size_t>(batch_size, 1);
   std::vector<std::uint64_t> counts(m, 0);
-  if (permuted != nullptr) permuted->assign(total * m, 0.0);
   std::mutex counts_mutex;
-  const std::size_t batches = (total + batch_size - 1) / batch_size;
+  const std::size_t all_batches = (total + batch_size - 1) / batch_size;
+  // This process's batches [first_batch, end_batch): all of them unless processes share the work.
+  ProcessGroup* const processes = permuter.processes();
+  const IndexRange mine =
+      processes != nullptr ? share_of(all_batches, processes->rank(), processes->size()) : IndexRange{0, all_batches};
+  const std::size_t first_batch = mine.begin;
+  const std::size_t end_batch = mine.end;
+  const std::size_t first_permutation = std::min(total, first_batch * batch_size);
+  const std::size_t end_permutation = std::min(total, end_batch * batch_size);
+  if (permuted != nullptr) permuted->assign((end_permutation - first_permutation) * m, 0.0);
+  const std::size_t batches = end_batch - first_batch;
   threads = std::clamp<std::size_t>(threads, 1, std::max<std::size_t>(batches, 1));
   // Each thread keeps its evaluator and buffers; integer counts are merged at the end.
   std::atomic<std::size_t> next{0};
@@ -263,13 +273,15 @@ std::vector<std::uint64_t> count_exceedances(const LabelPermuter& permuter, std:
       std::vector<double> statistics(batch_size * m);
       std::vector<std::uint64_t> local(m, 0);
       for (std::size_t b = next++; b < batches; b = next++) {
-        const std::size_t first = b * batch_size;
+        const std::size_t first = (first_batch + b) * batch_size;
         const std::size_t size = std::min(batch_size, total - first);
         for (std::size_t i = 0; i < size; ++i) {
           permuter.permuted(first + i, std::span<int>(labels.data() + i * n, n));
         }
         evaluate(labels.data(), size, statistics.data());
-        if (permuted != nullptr) std::copy_n(statistics.data(), size * m, permuted->data() + first * m);
+        if (permuted != nullptr) {
+          std::copy_n(statistics.data(), size * m, permuted->data() + (first - first_permutation) * m);
+        }
         for (std::size_t i = 0; i < size; ++i) {
           for (std::size_t j = 0; j < m; ++j) {
             if (at_least_as_extreme(statistics[i * m + j], observed[j], tail)) ++local[j];
@@ -290,6 +302,10 @@ std::vector<std::uint64_t> count_exceedances(const LabelPermuter& permuter, std:
   work();
   for (auto& thread : pool) thread.join();
   if (failure) std::rethrow_exception(failure);
+  if (processes != nullptr) {
+    processes->sum(std::span<std::uint64_t>(counts));
+    if (permuted != nullptr) *permuted = processes->all_gather(std::span<const double>(*permuted));
+  }
   return counts;
 }
 

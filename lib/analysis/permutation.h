@@ -13,6 +13,8 @@
 
 namespace loupe {
 
+class ProcessGroup;
+
 struct PermutationOptions {
   std::size_t permutations = 999;  // P; 0 computes the statistics only (p-values NaN)
   std::uint64_t seed = 1;
@@ -22,6 +24,11 @@ struct PermutationOptions {
   // Keep a histogram of each test's permuted statistics in its record (TestRecord::null_distribution), for
   // drawing; it never changes a statistic or a p-value.
   bool keep_null_distribution = false;
+  // Several processes (MPI ranks; common/process_group.h) share the permutations:
+  // each evaluates a contiguous range of them and the counts and permuted statistics
+  // are combined, so every process gets exactly the single-process result. Every
+  // process must run the same tests in the same order. Null: this process alone.
+  ProcessGroup* processes = nullptr;
 };
 
 // One random stream: the splitmix64 generator (Steele, Lea & Flood 2014).
@@ -84,6 +91,7 @@ class LabelPermuter {
   std::uint64_t seed() const { return seed_; }
   std::uint64_t arrangements() const { return arrangements_; }  // saturating
   const std::vector<int>& observed() const { return observed_; }
+  ProcessGroup* processes() const { return processes_; }  // from the options
 
   // Writes the labels of permutation `index` (< count()) into out (size()).
   void permuted(std::size_t index, std::span<int> out) const;
@@ -107,6 +115,7 @@ class LabelPermuter {
   std::uint64_t seed_ = 0;
   std::uint64_t arrangements_ = 0;
   std::uint64_t observed_rank_ = 0;
+  ProcessGroup* processes_ = nullptr;
 };
 
 // Evaluates the statistics of `batch` labelings at once: labels is batch x n
@@ -123,6 +132,10 @@ enum class Tail { upper, two_sided };  // b counts T* >= T, or |T*| >= |T|
 // an absolute sqrt(machine epsilon): F* >= F - EPS, read from its source).
 // Integer counts from `threads` threads: the result is the same for any count.
 // With `permuted`, also keeps every permuted statistic: permutation i's m values at [i m, (i + 1) m).
+// When the permuter's options name several processes, each evaluates a contiguous
+// range of whole batches (so every batch holds the same permutations as in one
+// process), the counts are summed and the permuted statistics gathered: every
+// process returns the single-process result, bit for bit.
 std::vector<std::uint64_t> count_exceedances(const LabelPermuter& permuter, std::span<const double> observed, Tail tail,
                                              std::size_t threads, const EvaluatorFactory& make_evaluator,
                                              std::size_t batch_size = 16, std::vector<double>* permuted = nullptr);

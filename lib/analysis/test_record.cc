@@ -178,13 +178,18 @@ Spread spread_of(std::span<const double> values) {
   return spread;
 }
 
-ChainSummary summarize_chains(std::span<const TestRecord> one_per_chain) {
+ChainSummary summarize_chains(std::span<const TestRecord> one_per_chain, double level) {
   if (one_per_chain.empty()) throw Error("summarize_chains: no records to summarise");
   const auto& first = one_per_chain.front();
-  ChainSummary summary{
-      first.method, first.statistic_name, first.comparison, first.topic, one_per_chain.size(), {}, {}, {}, {}};
+  ChainSummary summary;
+  summary.method = first.method;
+  summary.statistic_name = first.statistic_name;
+  summary.comparison = first.comparison;
+  summary.topic = first.topic;
+  summary.chains = one_per_chain.size();
   std::set<int> chains;
   std::vector<double> statistic, effect, p, adjusted;
+  std::vector<std::string> conclusions;
   for (const auto& r : one_per_chain) {
     if (test_key(r) != test_key(first)) {
       throw Error("summarize_chains: records of different tests (" + first.method + " " + first.comparison + " and " +
@@ -198,15 +203,18 @@ ChainSummary summarize_chains(std::span<const TestRecord> one_per_chain) {
     effect.push_back(r.effect_size);
     p.push_back(r.p_value);
     adjusted.push_back(r.adjusted_p_value);
+    conclusions.push_back(significance_conclusion(r.p_value, r.adjusted_p_value, level));
   }
   summary.statistic = spread_of(statistic);
   summary.effect_size = spread_of(effect);
   summary.p_value = spread_of(p);
   summary.adjusted_p_value = spread_of(adjusted);
+  summary.level = level;
+  summary.significance = modal_conclusion(conclusions);
   return summary;
 }
 
-std::vector<ChainSummary> summarize_by_test(std::span<const TestRecord> records) {
+std::vector<ChainSummary> summarize_by_test(std::span<const TestRecord> records, double level) {
   std::vector<std::vector<TestRecord>> groups;
   std::map<std::tuple<std::string, std::string, std::string, int>, std::size_t> index;
   for (const auto& r : records) {
@@ -217,7 +225,7 @@ std::vector<ChainSummary> summarize_by_test(std::span<const TestRecord> records)
   }
   std::vector<ChainSummary> summaries;
   summaries.reserve(groups.size());
-  for (const auto& g : groups) summaries.push_back(summarize_chains(g));
+  for (const auto& g : groups) summaries.push_back(summarize_chains(g, level));
   return summaries;
 }
 
@@ -230,7 +238,11 @@ nlohmann::json to_json(const ChainSummary& s) {
           {"statistic", spread_json(s.statistic)},
           {"effect_size", spread_json(s.effect_size)},
           {"p_value", spread_json(s.p_value)},
-          {"adjusted_p_value", spread_json(s.adjusted_p_value)}};
+          {"adjusted_p_value", spread_json(s.adjusted_p_value)},
+          {"level", s.level},
+          {"conclusion", s.significance.conclusion},
+          {"chains_agreeing", s.significance.backing},
+          {"agreement", agreement_label(s.significance.agreement)}};
 }
 
 }  // namespace loupe

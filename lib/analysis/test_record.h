@@ -12,6 +12,8 @@
 
 #include <nlohmann/json.hpp>
 
+#include "analysis/chain_agreement.h"
+
 namespace loupe {
 
 inline constexpr double kNotAvailable = std::numeric_limits<double>::quiet_NaN();
@@ -87,14 +89,17 @@ struct ChainSummary {
   int topic = -1;
   std::size_t chains = 0;
   Spread statistic, effect_size, p_value, adjusted_p_value;
+  double level = 0.05;           // the level the conclusion is drawn at
+  ModalConclusion significance;  // "p <= level" or "p > level" (adjusted p when there is one) on most chains
 };
 
-// Summarises one record per chain of the same test. Throws loupe::Error when
+// Summarises one record per chain of the same test, and whether the test is
+// significant at `level` on all chains, most or split. Throws loupe::Error when
 // the records are of different tests, or when a chain appears twice.
-ChainSummary summarize_chains(std::span<const TestRecord> one_per_chain);
+ChainSummary summarize_chains(std::span<const TestRecord> one_per_chain, double level = 0.05);
 // Groups records by test (method, statistic, comparison, topic) in order of
 // first appearance and summarises each group.
-std::vector<ChainSummary> summarize_by_test(std::span<const TestRecord> records);
+std::vector<ChainSummary> summarize_by_test(std::span<const TestRecord> records, double level = 0.05);
 nlohmann::json to_json(const ChainSummary& summary);
 
 }  // namespace loupe

@@ -1,6 +1,7 @@
 #include "common/binary_io.h"
 
 #include <unistd.h>
+#include <algorithm>
 #include <cerrno>
 #include <cstdio>
 #include <filesystem>
@@ -106,6 +107,108 @@ void write_binary_file(const std::string& path, const FileFormat& format, const 
   const std::uint64_t checksum = fnv1a64(payload.data(), payload.size());
   out.append(reinterpret_cast<const char*>(&checksum), sizeof(checksum));
   write_file_atomically(path, out);
+}
+
+BinaryFileReader::BinaryFileReader(const std::string& path, const FileFormat& format)
+    : path_(path), kind_(format.kind) {
+  std::error_code ec;
+  if (!std::filesystem::exists(path, ec)) {
+    throw Error(std::string("cannot read ") + format.kind + " file " + path + ": no such file. Check the path.");
+  }
+  const auto file_size = std::filesystem::file_size(path, ec);
+  in_.open(path, std::ios::binary);
+  if (ec || !in_) {
+    throw Error("cannot read " + path + ": " + (ec ? ec.message() : std::string(std::strerror(errno))) +
+                ". Check the path and that this process may read it.");
+  }
+  char header[kHeaderSize] = {};
+  if (file_size < kHeaderSize || !in_.read(header, kHeaderSize) || std::memcmp(header, format.magic, 8) != 0) {
+    throw Error(path + ": not a loupe " + kind_ +
+                " file (its first bytes do not match). Pass a file that loupe wrote as a " + kind_ + ".");
+  }
+  std::memcpy(&version_, header + 8, sizeof(version_));
+  if (version_ > format.version || version_ == 0) {
+    throw Error(path + ": " + kind_ + " file format version " + std::to_string(version_) +
+                " is newer than this loupe reads (version " + std::to_string(format.version) +
+                "). Upgrade loupe, or rebuild the file with this version.");
+  }
+  std::memcpy(&payload_size_, header + 12, sizeof(payload_size_));
+  const std::uint64_t held = file_size >= kHeaderSize + kTrailerSize ? file_size - kHeaderSize - kTrailerSize : 0;
+  if (file_size < kHeaderSize + kTrailerSize || payload_size_ != held) {
+    throw Error(path + ": " + kind_ + " file is truncated or has extra bytes (header says " +
+                std::to_string(payload_size_) + " payload bytes, file holds " + std::to_string(held) +
+                "). The file is damaged; rebuild it.");
+  }
+}
+
+void BinaryFileReader::fail(const std::string& what) const {
+  std::ostringstream message;
+  message << path_ << ": corrupt at byte " << offset_ << ": " << what
+          << ". The file is damaged; rebuild it from its sources.";
+  throw Error(message.str());
+}
+
+std::uint64_t BinaryFileReader::get_count(std::size_t element_size) {
+  const auto count = get<std::uint64_t>();
+  const auto left = payload_size_ - offset_;
+  if (element_size > 0 && count > left / element_size) {
+    fail("a length field (" + std::to_string(count) + ") runs past the end of the data");
+  }
+  return count;
+}
+
+std::string BinaryFileReader::get_string() {
+  const auto size = get_count(1);
+  std::string text(size, '\0');
+  read(text.data(), size);
+  return text;
+}
+
+std::vector<std::string> BinaryFileReader::get_strings() {
+  const auto size = get_count(sizeof(std::uint64_t));
+  std::vector<std::string> values;
+  values.reserve(size);
+  for (std::uint64_t i = 0; i < size; ++i) values.push_back(get_string());
+  return values;
+}
+
+void BinaryFileReader::read(void* out, std::uint64_t size) {
+  if (size > payload_size_ - offset_) fail("unexpected end of data");
+  in_.seekg(static_cast<std::streamoff>(kHeaderSize + offset_));
+  if (!in_.read(static_cast<char*>(out), static_cast<std::streamsize>(size))) {
+    in_.clear();
+    fail("the file could not be read here (" + std::string(std::strerror(errno)) + ")");
+  }
+  offset_ += size;
+}
+
+void BinaryFileReader::skip(std::uint64_t size) {
+  if (size > payload_size_ - offset_) fail("unexpected end of data");
+  offset_ += size;
+}
+
+void BinaryFileReader::verify_checksum(const std::function<void(std::uint64_t, const char*, std::size_t)>& on_chunk) {
+  constexpr std::size_t kChunk = std::size_t{1} << 22;
+  std::vector<char> buffer(kChunk);
+  Fnv1a64 hash;
+  in_.clear();
+  in_.seekg(static_cast<std::streamoff>(kHeaderSize));
+  for (std::uint64_t done = 0; done < payload_size_;) {
+    const auto size = static_cast<std::size_t>(std::min<std::uint64_t>(kChunk, payload_size_ - done));
+    if (!in_.read(buffer.data(), static_cast<std::streamsize>(size))) {
+      in_.clear();
+      throw Error(path_ + ": the " + kind_ + " file could not be read at byte " + std::to_string(done) +
+                  ". The file is damaged or was changed while loupe read it; rebuild it.");
+    }
+    hash.update(buffer.data(), size);
+    if (on_chunk) on_chunk(done, buffer.data(), size);
+    done += size;
+  }
+  std::uint64_t stored = 0;
+  if (!in_.read(reinterpret_cast<char*>(&stored), sizeof(stored)) || stored != hash.digest()) {
+    in_.clear();
+    throw Error(path_ + ": " + kind_ + " file checksum mismatch: the file is corrupted. Rebuild it from its sources.");
+  }
 }
 
 std::string read_binary_file(const std::string& path, const FileFormat& format, std::uint32_t* version) {

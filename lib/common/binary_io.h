@@ -6,6 +6,8 @@
 
 #include <cstdint>
 #include <cstring>
+#include <fstream>
+#include <functional>
 #include <string>
 #include <string_view>
 #include <type_traits>
@@ -105,6 +107,60 @@ void write_binary_file(const std::string& path, const FileFormat& format, const 
 // and sets *version. Throws loupe::Error for a missing file, a wrong magic, a
 // newer version, a truncated file or a checksum mismatch.
 std::string read_binary_file(const std::string& path, const FileFormat& format, std::uint32_t* version);
+
+// Reads a file written by write_binary_file piece by piece, without holding it in
+// memory: a process that needs only part of a large file (one share of a corpus's
+// tokens) reads the fields before it, skips to it and reads just that. The header
+// (magic, version, payload size against the file size) is checked on opening; the
+// checksum only by verify_checksum(), which streams the whole payload once.
+// Offsets in messages count from the start of the payload, as BinaryReader's do.
+class BinaryFileReader {
+ public:
+  // Throws loupe::Error like read_binary_file for a missing, foreign, newer or truncated file.
+  BinaryFileReader(const std::string& path, const FileFormat& format);
+
+  std::uint32_t version() const { return version_; }
+  std::uint64_t payload_size() const { return payload_size_; }
+  std::uint64_t offset() const { return offset_; }  // the next payload byte to read
+
+  template <typename T>
+  T get() {
+    static_assert(std::is_trivially_copyable_v<T>);
+    T value;
+    read(&value, sizeof(T));
+    return value;
+  }
+  std::string get_string();
+  std::vector<std::string> get_strings();
+  template <typename T>
+  std::vector<T> get_vector() {
+    static_assert(std::is_trivially_copyable_v<T>);
+    const auto size = get_count(sizeof(T));
+    std::vector<T> values(size);
+    if (size > 0) read(values.data(), size * sizeof(T));
+    return values;
+  }
+  // A vector's length field, checked against the bytes left; the caller reads or skips the values.
+  std::uint64_t get_count(std::size_t element_size);
+  void read(void* out, std::uint64_t size);
+  void skip(std::uint64_t size);
+  bool at_end() const { return offset_ == payload_size_; }
+  // Throws loupe::Error "FILE: corrupt at byte N: WHAT".
+  [[noreturn]] void fail(const std::string& what) const;
+
+  // Streams the whole payload from its start, calling on_chunk(payload offset, bytes,
+  // size) for consecutive chunks, and checks the checksum at the end (loupe::Error
+  // naming the file when it differs). Leaves the reading position where it was.
+  void verify_checksum(const std::function<void(std::uint64_t, const char*, std::size_t)>& on_chunk = {});
+
+ private:
+  std::string path_;
+  std::string kind_;
+  std::ifstream in_;
+  std::uint32_t version_ = 0;
+  std::uint64_t payload_size_ = 0;
+  std::uint64_t offset_ = 0;
+};
 
 // Writes text to PATH via a temporary file in the same folder and a rename.
 void write_file_atomically(const std::string& path, std::string_view contents);

@@ -1,5 +1,8 @@
 #include "corpus/corpus.h"
 
+#include <string>
+#include <vector>
+
 #include "common/checksum.h"
 #include "common/error.h"
 
@@ -11,7 +14,9 @@ void Corpus::add_document(Document document, std::span<const WordId> words) {
   token_offsets.push_back(tokens.size());
 }
 
-std::uint64_t Corpus::fingerprint() const {
+Fnv1a64 fingerprint_before_tokens(const std::vector<std::string>& vocabulary, const std::vector<std::string>& groups,
+                                  const std::vector<Document>& documents,
+                                  std::span<const std::uint64_t> token_offsets) {
   Fnv1a64 h;
   h.update_value<std::uint64_t>(vocabulary.size());
   for (const auto& word : vocabulary) h.update(word);
@@ -22,6 +27,11 @@ std::uint64_t Corpus::fingerprint() const {
     h.update_value(static_cast<unsigned char>(doc.role));
   }
   h.update(token_offsets.data(), token_offsets.size() * sizeof(token_offsets[0]));
+  return h;
+}
+
+std::uint64_t Corpus::fingerprint() const {
+  Fnv1a64 h = fingerprint_before_tokens(vocabulary, groups, documents, token_offsets);
   h.update(tokens.data(), tokens.size() * sizeof(tokens[0]));
   return h.digest();
 }
@@ -46,6 +56,34 @@ void Corpus::validate(const std::string& where) const {
     if (doc.metadata.size() != metadata_columns.size())
       fail("document " + doc.id + " has the wrong number of metadata fields");
   }
+}
+
+Corpus corpus_of_documents(const Corpus& corpus, std::span<const std::size_t> documents) {
+  Corpus out;
+  out.vocabulary = corpus.vocabulary;
+  out.groups = corpus.groups;
+  out.metadata_columns = corpus.metadata_columns;
+  const std::size_t v = corpus.vocabulary_size();
+  out.word_frequency.assign(v, 0);
+  out.document_frequency.assign(v, 0);
+  std::vector<std::size_t> last_seen(v, static_cast<std::size_t>(-1));
+  for (const std::size_t d : documents) {
+    if (d >= corpus.num_documents()) {
+      throw Error("document " + std::to_string(d) + " is outside the corpus of " +
+                  std::to_string(corpus.num_documents()) + " documents");
+    }
+    const auto words = corpus.document_tokens(d);
+    const std::size_t index = out.num_documents();
+    out.add_document(corpus.documents[d], words);
+    for (const auto w : words) {
+      ++out.word_frequency[w];
+      if (last_seen[w] != index) {
+        last_seen[w] = index;
+        ++out.document_frequency[w];
+      }
+    }
+  }
+  return out;
 }
 
 }  // namespace loupe

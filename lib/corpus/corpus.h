@@ -10,6 +10,7 @@
 
 #include <nlohmann/json.hpp>
 
+#include "common/checksum.h"
 #include "corpus/document_role.h"
 
 namespace loupe {
@@ -74,5 +75,15 @@ class Corpus {
   // throws loupe::Error naming what is wrong. Used after reading a file.
   void validate(const std::string& where) const;
 };
+
+// The documents `documents` of `corpus` (in that order) with its vocabulary, groups and metadata columns,
+// word and document frequencies recounted. Throws loupe::Error for an index outside the corpus.
+// Example: for held-out evaluation, every tenth document in one corpus and the rest in another.
+Corpus corpus_of_documents(const Corpus& corpus, std::span<const std::size_t> documents);
+
+// The hash Corpus::fingerprint computes before it adds the tokens' bytes, for a
+// reader that streams the tokens instead of holding them (read_corpus_share).
+Fnv1a64 fingerprint_before_tokens(const std::vector<std::string>& vocabulary, const std::vector<std::string>& groups,
+                                  const std::vector<Document>& documents, std::span<const std::uint64_t> token_offsets);
 
 }  // namespace loupe

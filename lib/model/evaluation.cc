@@ -35,17 +35,14 @@ double ordered_sum(std::size_t n, const ParallelRunner& runner, F f) {
 
 }  // namespace
 
-double log_joint_likelihood(const Corpus& corpus, const SamplerState& state, const ParallelRunner& runner) {
-  const auto& counts = state.counts;
-  const std::size_t k = counts.topic_count;
-  const std::size_t v = counts.vocabulary_size;
-  const double beta = state.beta;
+namespace {
+
+// log p(z), the documents of `corpus`: blocks, each with its own K counters.
+double log_p_z(const Corpus& corpus, const SamplerState& state, const ParallelRunner& runner) {
+  const std::size_t k = state.counts.topic_count;
   const double alpha_sum = state.alpha_sum();
   std::vector<double> lgamma_alpha(k);
   for (std::size_t t = 0; t < k; ++t) lgamma_alpha[t] = log_gamma(state.alpha[t]);
-  const double lgamma_beta = log_gamma(beta);
-
-  // log p(z): document blocks, each with its own K counters.
   const std::size_t blocks = (corpus.num_documents() + kBlock - 1) / kBlock;
   std::vector<double> partial(blocks, 0.0);
   runner.run(blocks, [&](std::size_t b) {
@@ -67,10 +64,16 @@ double log_joint_likelihood(const Corpus& corpus, const SamplerState& state, con
     }
     partial[b] = sum;
   });
-  const double log_p_z = std::accumulate(partial.begin(), partial.end(), 0.0);
+  return std::accumulate(partial.begin(), partial.end(), 0.0);
+}
 
-  // log p(w | z): word rows.
-  const double log_p_w_rows = ordered_sum(v, runner, [&](std::size_t w) {
+// The word rows of log p(w | z).
+double log_p_w_rows(const SamplerState& state, const ParallelRunner& runner) {
+  const auto& counts = state.counts;
+  const std::size_t k = counts.topic_count;
+  const double beta = state.beta;
+  const double lgamma_beta = log_gamma(beta);
+  return ordered_sum(counts.vocabulary_size, runner, [&](std::size_t w) {
     const std::uint32_t* row = counts.word_topic.data() + w * k;
     double sum = 0;
     for (std::size_t t = 0; t < k; ++t) {
@@ -78,10 +81,30 @@ double log_joint_likelihood(const Corpus& corpus, const SamplerState& state, con
     }
     return sum;
   });
-  const double v_beta = beta * static_cast<double>(v);
-  double log_p_w_topics = 0;
-  for (std::size_t t = 0; t < k; ++t) log_p_w_topics += log_gamma(v_beta) - log_gamma(counts.topic_total[t] + v_beta);
-  return log_p_z + log_p_w_rows + log_p_w_topics;
+}
+
+// The topic totals' part of log p(w | z).
+double log_p_w_topics(const SamplerState& state) {
+  const auto& counts = state.counts;
+  const double v_beta = state.beta * static_cast<double>(counts.vocabulary_size);
+  double sum = 0;
+  for (std::size_t t = 0; t < counts.topic_count; ++t)
+    sum += log_gamma(v_beta) - log_gamma(counts.topic_total[t] + v_beta);
+  return sum;
+}
+
+}  // namespace
+
+double log_joint_likelihood(const Corpus& corpus, const SamplerState& state, const ParallelRunner& runner) {
+  return log_p_z(corpus, state, runner) + log_p_w_rows(state, runner) + log_p_w_topics(state);
+}
+
+double log_topic_assignment_likelihood(const Corpus& corpus, const SamplerState& state, const ParallelRunner& runner) {
+  return log_p_z(corpus, state, runner);
+}
+
+double log_word_likelihood(const SamplerState& state, const ParallelRunner& runner) {
+  return log_p_w_rows(state, runner) + log_p_w_topics(state);
 }
 
 double gelman_rubin_rhat(const std::vector<std::vector<double>>& traces) {

@@ -21,6 +21,12 @@ namespace loupe {
 // Summed in a fixed order: the value does not depend on the thread count.
 double log_joint_likelihood(const Corpus& corpus, const SamplerState& state, const ParallelRunner& runner);
 
+// Its two parts, for a fit spread over processes: log p(z) over the documents of
+// `corpus` (one share: sum it across the processes) and log p(w | z), which reads
+// only the counts (the whole corpus's after a SharedCountMerger merge).
+double log_topic_assignment_likelihood(const Corpus& corpus, const SamplerState& state, const ParallelRunner& runner);
+double log_word_likelihood(const SamplerState& state, const ParallelRunner& runner);
+
 // Potential scale reduction of R chains' traces (each n values, n >= 2, R >= 2):
 //   W = mean within-chain variance, B = n * variance of the chain means,
 //   R-hat = sqrt(((n - 1)/n W + B/n) / W).

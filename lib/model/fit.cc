@@ -8,6 +8,7 @@
 #include <numeric>
 
 #include "model/checkpoint.h"
+#include "model/count_merge.h"
 #include "model/evaluation.h"
 #include "model/gibbs_sampler.h"
 #include "model/prior_tuning.h"
@@ -34,8 +35,10 @@ bool tunes_at(const FitOptions& options, std::uint32_t sweep) {
          (sweep - options.burn_in) % options.tune_priors_every == 0;
 }
 
-// Adds the state after a retained sweep to the chain's running sums.
-void accumulate_sample(const Corpus& corpus, ChainProgress& chain) {
+// Adds the state after a retained sweep to the chain's running sums. The counts
+// are those of all `total_tokens` tokens (more than corpus's when it is one share);
+// phi is summed only with keep_phi (the process that writes the model).
+void accumulate_sample(const Corpus& corpus, ChainProgress& chain, double total_tokens, bool keep_phi) {
   const auto& state = chain.state;
   auto& sums = chain.sums;
   const std::size_t k = state.counts.topic_count;
@@ -43,7 +46,7 @@ void accumulate_sample(const Corpus& corpus, ChainProgress& chain) {
   const std::size_t d_total = corpus.num_documents();
   if (sums.theta_sum.empty()) {
     sums.theta_sum.assign(d_total * k, 0.0F);
-    sums.phi_sum.assign(v * k, 0.0F);
+    if (keep_phi) sums.phi_sum.assign(v * k, 0.0F);
   }
   const double alpha_sum = state.alpha_sum();
   for (std::size_t d = 0; d < d_total; ++d) {
@@ -59,12 +62,12 @@ void accumulate_sample(const Corpus& corpus, ChainProgress& chain) {
   std::vector<double> inverse_total(k);
   for (std::size_t t = 0; t < k; ++t)
     inverse_total[t] = 1.0 / (state.counts.topic_total[t] + static_cast<double>(v) * beta);
-  for (std::size_t w = 0; w < v; ++w) {
+  for (std::size_t w = 0; keep_phi && w < v; ++w) {
     const std::uint32_t* counts = state.counts.word_topic.data() + w * k;
     float* row = sums.phi_sum.data() + w * k;
     for (std::size_t t = 0; t < k; ++t) row[t] += static_cast<float>((counts[t] + beta) * inverse_total[t]);
   }
-  const double n = static_cast<double>(corpus.num_tokens());
+  const double n = total_tokens;
   for (std::size_t t = 0; t < k; ++t) sums.share_sum[t] += state.counts.topic_total[t] / n;
   sums.sample_alpha.insert(sums.sample_alpha.end(), state.alpha.begin(), state.alpha.end());
   sums.sample_beta.push_back(beta);
@@ -82,8 +85,8 @@ ChainEstimates finish_chain(const Corpus& corpus, const ChainProgress& chain) {
   out.alpha = chain.state.alpha;
   out.beta = chain.state.beta;
   out.trace = sums.trace;
-  out.phi.resize(k * v);
-  for (std::size_t w = 0; w < v; ++w) {
+  out.phi.resize(sums.phi_sum.empty() ? 0 : k * v);
+  for (std::size_t w = 0; !sums.phi_sum.empty() && w < v; ++w) {
     for (std::size_t t = 0; t < k; ++t) out.phi[t * v + w] = static_cast<float>(sums.phi_sum[w * k + t] / samples);
   }
   std::vector<double> sample_alpha_sum(sums.samples_taken);
@@ -153,22 +156,86 @@ FitMemory estimate_fit_memory(const Corpus& corpus, const FitOptions& options) {
   return memory;
 }
 
-Model fit_model(const Corpus& corpus, const FitOptions& options, const FitControl& control) {
-  validate_fit_options(options, corpus);
+namespace {
+
+// A fit spread over processes: this process's part of it (fit_model_shared).
+struct Sharing {
+  ProcessGroup* processes = nullptr;
+  const CorpusShare* share = nullptr;
+};
+
+// Histograms as numbers, for all_gather: the count of histograms, then per
+// histogram (lengths first) its size and its (value, count) pairs.
+void encode_histogram(const CountHistogram& histogram, std::vector<std::uint64_t>& out) {
+  out.push_back(histogram.size());
+  for (const auto& [value, count] : histogram) {
+    out.push_back(value);
+    out.push_back(count);
+  }
+}
+
+// The document histograms of every process's share, added in rank order.
+DocumentCountHistograms shared_histograms(ProcessGroup& processes, const DocumentCountHistograms& mine) {
+  std::vector<std::uint64_t> encoded{mine.topic_counts.size()};
+  encode_histogram(mine.lengths, encoded);
+  for (const auto& histogram : mine.topic_counts) encode_histogram(histogram, encoded);
+  const std::vector<std::uint64_t> all = processes.all_gather(std::span<const std::uint64_t>(encoded));
+  DocumentCountHistograms total;
+  total.topic_counts.assign(mine.topic_counts.size(), {});
+  std::size_t at = 0;
+  auto decode = [&] {
+    CountHistogram histogram(all[at++]);
+    for (auto& [value, count] : histogram) {
+      value = static_cast<std::uint32_t>(all[at++]);
+      count = all[at++];
+    }
+    return histogram;
+  };
+  for (std::size_t rank = 0; rank < processes.size(); ++rank) {
+    const std::size_t lists = all[at++];
+    total.lengths = add_histograms(total.lengths, decode());
+    for (std::size_t h = 0; h < lists; ++h) total.topic_counts[h] = add_histograms(total.topic_counts[h], decode());
+  }
+  return total;
+}
+
+Model fit_chains(const Corpus& corpus, const FitOptions& options, const FitControl& control, const Sharing* sharing) {
+  ProcessGroup* const processes = sharing != nullptr ? sharing->processes : nullptr;
+  const bool is_root = processes == nullptr || processes->rank() == 0;
+  const std::uint64_t token_count = sharing != nullptr ? sharing->share->total_tokens : corpus.num_tokens();
+  const auto total_tokens = static_cast<double>(token_count);
+  if (sharing != nullptr) {
+    validate_fit_options(options, sharing->share->total_documents, sharing->share->total_tokens);
+    if (options.checkpoint_every > 0 || !control.resume_from.empty()) {
+      throw Error(
+          "cannot fit the model: checkpoints (--checkpoint-every, --resume) are not available when the fit is "
+          "spread over several processes (mpirun). Fit without them, or without mpirun.");
+    }
+  } else {
+    validate_fit_options(options, corpus);
+  }
   const auto start = Clock::now();
-  const std::uint64_t fingerprint = corpus.fingerprint();
+  const std::uint64_t fingerprint = sharing == nullptr ? corpus.fingerprint() : sharing->share->fingerprint;
   const std::uint32_t k = options.topic_count;
   const std::size_t r = options.chains;
   const std::size_t threads = options.threads;
   const bool asymmetric = alpha_is_asymmetric(options);
   const auto retained = retained_sweeps(options);
+  const SamplerKind kind = resolve_sampler(options.sampler, k);
 
   LocalCountMerger local_merger;
-  CountMerger& merger = control.merger != nullptr ? *control.merger : local_merger;
+  std::unique_ptr<SharedCountMerger> shared_merger;
+  if (processes != nullptr && control.merger == nullptr) {
+    shared_merger = std::make_unique<SharedCountMerger>(*processes, kind == SamplerKind::metropolis_hastings);
+  }
+  CountMerger& merger = control.merger != nullptr ? *control.merger
+                        : shared_merger           ? static_cast<CountMerger&>(*shared_merger)
+                                                  : local_merger;
   // Each chain is split into shards so that all threads have work: with more
   // chains than threads every chain is one shard (exact sequential Gibbs).
   const std::size_t shards_per_chain = std::max<std::size_t>(1, threads / r);
-  const GibbsSampler sampler(corpus, k, options.sampler, options.mh_steps, shards_per_chain);
+  const GibbsSampler sampler(corpus, k, options.sampler, options.mh_steps, shards_per_chain,
+                             sharing != nullptr ? sharing->share->first_document : 0);
   std::vector<ShardWorkspace> workspaces(threads);
   const ParallelRunner all_threads(threads);
   const ParallelRunner one_thread(1);
@@ -219,12 +286,30 @@ Model fit_model(const Corpus& corpus, const FitOptions& options, const FitContro
   }
 
   // Chains share the threads: with at least as many chains as threads each
-  // chain's per-chain work runs on one thread, chains side by side.
+  // chain's per-chain work runs on one thread, chains side by side. Work that
+  // talks to other processes runs chain after chain on this thread (every
+  // process must make the same calls in the same order).
   auto for_each_chain = [&](const std::function<void(std::size_t, const ParallelRunner&)>& work) {
-    if (r >= threads) {
+    if (processes != nullptr) {
+      for (std::size_t c = 0; c < r; ++c) work(c, all_threads);
+    } else if (r >= threads) {
       all_threads.run(r, [&](std::size_t c) { work(c, one_thread); });
     } else {
       for (std::size_t c = 0; c < r; ++c) work(c, all_threads);
+    }
+  };
+  auto trace_value = [&](const ChainProgress& chain, const ParallelRunner& runner) {
+    if (processes == nullptr) return log_joint_likelihood(corpus, chain.state, runner);
+    double documents_part = log_topic_assignment_likelihood(corpus, chain.state, runner);
+    processes->sum(std::span<double>(&documents_part, 1));
+    return documents_part + log_word_likelihood(chain.state, runner);
+  };
+  auto tune = [&](ChainProgress& chain) {
+    if (processes == nullptr) {
+      tune_priors(corpus, chain.state, asymmetric);
+    } else {
+      tune_priors(shared_histograms(*processes, document_count_histograms(corpus, chain.state, asymmetric)),
+                  chain.state, asymmetric);
     }
   };
 
@@ -254,7 +339,7 @@ Model fit_model(const Corpus& corpus, const FitOptions& options, const FitContro
     const double sweep_seconds = seconds_since(sweep_start);
     if (sweep > 0) {
       sampling_seconds += sweep_seconds;
-      token_updates += r * corpus.num_tokens();
+      token_updates += r * token_count;
     }
     if (control.after_sweep) {
       for (std::size_t c = 0; c < r; ++c) control.after_sweep(static_cast<std::uint32_t>(c), sweep, chains[c].state);
@@ -263,11 +348,9 @@ Model fit_model(const Corpus& corpus, const FitOptions& options, const FitContro
       // Trace, then keep a sample, then tune: a sample is averaged with the priors it was drawn under.
       for_each_chain([&](std::size_t c, const ParallelRunner& runner) {
         auto& chain = chains[c];
-        if (traces_at(options, sweep)) {
-          chain.sums.trace.push_back({sweep, log_joint_likelihood(corpus, chain.state, runner)});
-        }
-        if (is_retained(retained, sweep)) accumulate_sample(corpus, chain);
-        if (tunes_at(options, sweep)) tune_priors(corpus, chain.state, asymmetric);
+        if (traces_at(options, sweep)) chain.sums.trace.push_back({sweep, trace_value(chain, runner)});
+        if (is_retained(retained, sweep)) accumulate_sample(corpus, chain, total_tokens, is_root);
+        if (tunes_at(options, sweep)) tune(chain);
       });
     }
     bool wrote_checkpoint = false;
@@ -282,7 +365,7 @@ Model fit_model(const Corpus& corpus, const FitOptions& options, const FitContro
       FitProgress progress;
       progress.sweep = sweep;
       progress.sweeps = options.sweeps;
-      progress.tokens_per_second = sweep_seconds > 0 ? static_cast<double>(r * corpus.num_tokens()) / sweep_seconds : 0;
+      progress.tokens_per_second = sweep_seconds > 0 ? static_cast<double>(r * token_count) / sweep_seconds : 0;
       progress.log_likelihood = mean_latest_log_likelihood(chains);
       progress.elapsed_seconds = earlier_seconds + seconds_since(start);
       const double done = sweep - first_sweep + 1;
@@ -290,12 +373,21 @@ Model fit_model(const Corpus& corpus, const FitOptions& options, const FitContro
       progress.checkpoint_written = wrote_checkpoint;
       control.on_progress(progress);
     }
-    if (control.stop_requested != nullptr && control.stop_requested->load() && sweep < options.sweeps) {
+    bool stop = control.stop_requested != nullptr && control.stop_requested->load() && sweep < options.sweeps;
+    if (processes != nullptr && sweep < options.sweeps) {
+      // Every process stops after the same sweep, or none does.
+      std::uint32_t stops = stop ? 1 : 0;
+      processes->sum(std::span<std::uint32_t>(&stops, 1));
+      stop = stops > 0;
+    }
+    if (stop) {
       std::string message = "the fit was interrupted after sweep " + std::to_string(sweep) + " of " +
                             std::to_string(options.sweeps) + ". ";
       if (have_checkpoint) {
         message += "The last checkpoint (sweep " + std::to_string(last_checkpoint) + ") is in " +
                    options.checkpoint_path + "; continue with --resume " + options.checkpoint_path + ".";
+      } else if (processes != nullptr) {
+        message += "A fit spread over several processes cannot be resumed; start it again.";
       } else {
         message += "No checkpoint was written; use --checkpoint FILE --checkpoint-every N to be able to resume.";
       }
@@ -305,12 +397,44 @@ Model fit_model(const Corpus& corpus, const FitOptions& options, const FitContro
 
   Model model;
   model.options = options;
-  record_corpus(model, corpus);
-  for (const auto& chain : chains) model.chains.push_back(finish_chain(corpus, chain));
+  if (sharing == nullptr) {
+    record_corpus(model, corpus);
+  } else if (is_root) {
+    const CorpusShare& share = *sharing->share;
+    model.corpus_fingerprint = share.fingerprint;
+    model.num_tokens = share.total_tokens;
+    model.vocabulary = corpus.vocabulary;
+    model.groups = corpus.groups;
+    for (const auto& doc : share.all_documents) {
+      model.document_ids.push_back(doc.id);
+      model.document_groups.push_back(doc.group);
+      model.document_roles.push_back(doc.role);
+    }
+  }
+  for (const auto& chain : chains) {
+    model.chains.push_back(finish_chain(corpus, chain));
+    // theta of every document, in corpus order: the shares are consecutive ranges in rank order.
+    if (processes != nullptr) model.chains.back().theta = processes->gather_to_root(model.chains.back().theta);
+  }
   model.rhat = traces_rhat(chains, options.burn_in);
   model.timing.seconds = earlier_seconds + seconds_since(start);
   model.timing.tokens_per_second = sampling_seconds > 0 ? static_cast<double>(token_updates) / sampling_seconds : 0;
   return model;
+}
+
+}  // namespace
+
+Model fit_model(const Corpus& corpus, const FitOptions& options, const FitControl& control) {
+  return fit_chains(corpus, options, control, nullptr);
+}
+
+Model fit_model_shared(const CorpusShare& share, ProcessGroup& processes, const FitOptions& options,
+                       const FitControl& control) {
+  if (processes.rank() == 0 && share.all_documents.size() != share.total_documents) {
+    throw Error("fit_model_shared: rank 0 needs the share read with whole_corpus (read_corpus_share)");
+  }
+  const Sharing sharing{&processes, &share};
+  return fit_chains(share.corpus, options, control, &sharing);
 }
 
 }  // namespace loupe

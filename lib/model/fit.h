@@ -13,7 +13,9 @@
 #include <string>
 
 #include "common/error.h"
+#include "common/process_group.h"
 #include "corpus/corpus.h"
+#include "corpus/corpus_file.h"
 #include "model/count_merge.h"
 #include "model/lda_options.h"
 #include "model/model.h"
@@ -49,6 +51,20 @@ class FitInterrupted : public Error {
 
 // Validates the options for the corpus (loupe::Error), fits and returns the model.
 Model fit_model(const Corpus& corpus, const FitOptions& options, const FitControl& control = {});
+
+// The same fit spread over processes (MPI ranks under mpirun; lib/distributed),
+// every process calling it with its own share of the documents (read_corpus_share):
+// each samples its share with its own threads, and after every sweep the
+// topic-word counts are summed across the processes (SharedCountMerger;
+// approximate distributed Gibbs, Newman et al. 2009). Document d keeps its random
+// stream wherever it is sampled, so one process with the exact kernel gives the
+// single-process model (Metropolis-Hastings pools are refilled in another order).
+// The model is complete on rank 0, whose share must be read with whole_corpus:
+// theta of every document in corpus order, phi, the whole corpus's fingerprint,
+// the same file a single process writes. Elsewhere it holds priors, topic shares
+// and traces only. Checkpoints and --resume are refused (loupe::Error).
+Model fit_model_shared(const CorpusShare& share, ProcessGroup& processes, const FitOptions& options,
+                       const FitControl& control = {});
 
 // Memory a fit holds (sampler state and estimates), for reports.
 struct FitMemory {

@@ -35,17 +35,18 @@ DocumentPrior::DocumentPrior(std::span<const double> values) : alpha(values.begi
 }
 
 GibbsSampler::GibbsSampler(const Corpus& corpus, std::uint32_t topic_count, SamplerKind kind, std::uint32_t mh_steps,
-                           std::size_t shards)
+                           std::size_t shards, std::size_t first_document)
     : corpus_(corpus),
       topic_count_(topic_count),
       kind_(resolve_sampler(kind, topic_count)),
       mh_steps_(std::max<std::uint32_t>(mh_steps, 1)),
-      shards_(make_document_shards(corpus, shards)) {}
+      shards_(make_document_shards(corpus, shards)),
+      first_document_(first_document) {}
 
 void GibbsSampler::initialize_shard(SamplerState& state, std::uint64_t chain_seed, std::size_t shard) const {
   const auto& range = shards_[shard];
   for (std::size_t d = range.first; d < range.end; ++d) {
-    Xoshiro256 rng(derive_seed(chain_seed, {0, d}));
+    Xoshiro256 rng(derive_seed(chain_seed, {0, first_document_ + d}));
     for (auto i = corpus_.token_offsets[d]; i < corpus_.token_offsets[d + 1]; ++i) {
       state.topics[i] = static_cast<Topic>(rng.below(topic_count_));
     }
@@ -95,7 +96,7 @@ void GibbsSampler::sample_exact(SamplerState& state, const DocumentPrior& prior,
     const std::uint64_t begin = corpus_.token_offsets[d];
     const std::size_t length = static_cast<std::size_t>(corpus_.token_offsets[d + 1] - begin);
     if (length == 0) continue;
-    Xoshiro256 rng(derive_seed(chain_seed, {sweep, d}));
+    Xoshiro256 rng(derive_seed(chain_seed, {sweep, first_document_ + d}));
     Topic* z = state.topics.data() + begin;
     const WordId* words = corpus_.tokens.data() + begin;
     for (std::size_t i = 0; i < length; ++i) ++c[z[i]];
@@ -161,7 +162,7 @@ void GibbsSampler::sample_metropolis_hastings(SamplerState& state, const Documen
     const std::uint64_t begin = corpus_.token_offsets[d];
     const std::size_t length = static_cast<std::size_t>(corpus_.token_offsets[d + 1] - begin);
     if (length == 0) continue;
-    Xoshiro256 rng(derive_seed(chain_seed, {sweep, d}));
+    Xoshiro256 rng(derive_seed(chain_seed, {sweep, first_document_ + d}));
     Topic* z = state.topics.data() + begin;
     const WordId* words = corpus_.tokens.data() + begin;
     for (std::size_t i = 0; i < length; ++i) ++c[z[i]];

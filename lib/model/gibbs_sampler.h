@@ -61,9 +61,11 @@ struct ShardWorkspace {
 
 class GibbsSampler {
  public:
-  // kind must be exact or metropolis_hastings (see resolve_sampler).
+  // kind must be exact or metropolis_hastings (see resolve_sampler). first_document:
+  // the index of corpus's first document in a larger corpus that several processes
+  // share (CorpusShare), so that each document keeps its random stream wherever it is sampled.
   GibbsSampler(const Corpus& corpus, std::uint32_t topic_count, SamplerKind kind, std::uint32_t mh_steps,
-               std::size_t shards);
+               std::size_t shards, std::size_t first_document = 0);
 
   const std::vector<DocumentShard>& shards() const { return shards_; }
   std::uint32_t topic_count() const { return topic_count_; }
@@ -74,7 +76,7 @@ class GibbsSampler {
 
   // One pass over the tokens of the shard's documents. Reads state.counts
   // (the last merge), writes only the shard's topics. Document d's random
-  // numbers come from derive_seed(chain_seed, {sweep, d}).
+  // numbers come from derive_seed(chain_seed, {sweep, first_document + d}).
   void sample_shard(SamplerState& state, const DocumentPrior& prior, std::uint64_t chain_seed, std::uint32_t sweep,
                     std::size_t shard, ShardWorkspace& workspace) const;
 
@@ -88,6 +90,7 @@ class GibbsSampler {
   SamplerKind kind_;
   std::uint32_t mh_steps_;
   std::vector<DocumentShard> shards_;
+  std::size_t first_document_ = 0;
 };
 
 // One sweep of one chain: sample every shard (in parallel), then merge counts.

@@ -20,15 +20,14 @@ std::string number(double value) {
 
 }  // namespace
 
-void validate_fit_options(const FitOptions& options, const Corpus& corpus) {
+void validate_fit_options(const FitOptions& options, std::size_t documents, std::uint64_t tokens) {
   const auto k = options.topic_count;
-  if (corpus.num_documents() == 0 || corpus.num_tokens() == 0) {
-    reject("the corpus is empty (it has " + std::to_string(corpus.num_documents()) + " documents and " +
-           std::to_string(corpus.num_tokens()) +
+  if (documents == 0 || tokens == 0) {
+    reject("the corpus is empty (it has " + std::to_string(documents) + " documents and " + std::to_string(tokens) +
            " tokens). Check the ingest filters, or ingest a collection that has text.");
   }
-  if (corpus.num_tokens() >= std::numeric_limits<std::uint32_t>::max()) {
-    reject("the corpus has " + std::to_string(corpus.num_tokens()) +
+  if (tokens >= std::numeric_limits<std::uint32_t>::max()) {
+    reject("the corpus has " + std::to_string(tokens) +
            " tokens; this build counts at most 4294967294. Split the collection.");
   }
   if (k < 2) reject("the number of topics (--topics) is " + std::to_string(k) + "; it must be at least 2.");
@@ -36,9 +35,9 @@ void validate_fit_options(const FitOptions& options, const Corpus& corpus) {
     reject("the number of topics (--topics) is " + std::to_string(k) + "; it can be at most " +
            std::to_string(kMaxTopics) + ".");
   }
-  if (k > corpus.num_tokens()) {
+  if (k > tokens) {
     reject("the number of topics (--topics " + std::to_string(k) +
-           ") is larger than the number of tokens in the corpus (" + std::to_string(corpus.num_tokens()) +
+           ") is larger than the number of tokens in the corpus (" + std::to_string(tokens) +
            "). Choose fewer topics.");
   }
   if (options.sweeps == 0) reject("the number of sweeps (--sweeps) is 0; it must be at least 1.");
@@ -77,6 +76,10 @@ void validate_fit_options(const FitOptions& options, const Corpus& corpus) {
   if (options.checkpoint_every > 0 && options.checkpoint_path.empty()) {
     reject("--checkpoint-every needs a checkpoint file (--checkpoint FILE).");
   }
+}
+
+void validate_fit_options(const FitOptions& options, const Corpus& corpus) {
+  validate_fit_options(options, corpus.num_documents(), corpus.num_tokens());
 }
 
 std::vector<double> initial_alpha(const FitOptions& options) {

@@ -49,6 +49,9 @@ struct FitOptions {
 // impossible on its own or for this corpus (K < 2, K above the token count, no
 // sweeps, non-positive priors, an empty corpus, ...).
 void validate_fit_options(const FitOptions& options, const Corpus& corpus);
+// The same for a corpus of `documents` documents and `tokens` tokens (one that
+// several processes share, none holding all of it).
+void validate_fit_options(const FitOptions& options, std::size_t documents, std::uint64_t tokens);
 
 // The starting alpha vector (K values) that the options describe.
 std::vector<double> initial_alpha(const FitOptions& options);

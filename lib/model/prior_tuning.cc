@@ -102,7 +102,8 @@ double fit_symmetric_dirichlet(const CountHistogram& cells, const CountHistogram
   return a;
 }
 
-void tune_priors(const Corpus& corpus, SamplerState& state, bool asymmetric_alpha) {
+DocumentCountHistograms document_count_histograms(const Corpus& corpus, const SamplerState& state,
+                                                  bool asymmetric_alpha) {
   const std::size_t k = state.counts.topic_count;
   // Document-topic counts n_dk, per topic (asymmetric) or pooled (symmetric).
   std::vector<std::vector<std::uint32_t>> per_topic(asymmetric_alpha ? k : 1);
@@ -121,22 +122,50 @@ void tune_priors(const Corpus& corpus, SamplerState& state, bool asymmetric_alph
       c[t] = 0;
     }
   }
-  const CountHistogram length_histogram = make_histogram(lengths);
+  DocumentCountHistograms histograms;
+  histograms.lengths = make_histogram(lengths);
+  histograms.topic_counts.reserve(per_topic.size());
+  for (auto& values : per_topic) histograms.topic_counts.push_back(make_histogram(values));
+  return histograms;
+}
+
+CountHistogram add_histograms(const CountHistogram& a, const CountHistogram& b) {
+  CountHistogram sum;
+  sum.reserve(a.size() + b.size());
+  std::size_t i = 0;
+  std::size_t j = 0;
+  while (i < a.size() || j < b.size()) {
+    if (j == b.size() || (i < a.size() && a[i].first < b[j].first)) {
+      sum.push_back(a[i++]);
+    } else if (i == a.size() || b[j].first < a[i].first) {
+      sum.push_back(b[j++]);
+    } else {
+      sum.emplace_back(a[i].first, a[i].second + b[j].second);
+      ++i;
+      ++j;
+    }
+  }
+  return sum;
+}
+
+void tune_priors(const DocumentCountHistograms& documents, SamplerState& state, bool asymmetric_alpha) {
+  const std::size_t k = state.counts.topic_count;
   if (asymmetric_alpha) {
-    std::vector<CountHistogram> histograms;
-    histograms.reserve(k);
-    for (auto& values : per_topic) histograms.push_back(make_histogram(values));
-    state.alpha = fit_asymmetric_dirichlet(histograms, length_histogram, state.alpha);
+    state.alpha = fit_asymmetric_dirichlet(documents.topic_counts, documents.lengths, state.alpha);
   } else {
     const double mean = state.alpha_sum() / static_cast<double>(k);
     const double a =
-        fit_symmetric_dirichlet(make_histogram(per_topic[0]), length_histogram, static_cast<std::uint32_t>(k), mean);
+        fit_symmetric_dirichlet(documents.topic_counts[0], documents.lengths, static_cast<std::uint32_t>(k), mean);
     state.alpha.assign(k, a);
   }
   // Topic-word counts n_wk against topic totals n_k, symmetric over V words.
   state.beta =
       fit_symmetric_dirichlet(make_histogram(state.counts.word_topic), make_histogram(state.counts.topic_total),
                               state.counts.vocabulary_size, state.beta);
+}
+
+void tune_priors(const Corpus& corpus, SamplerState& state, bool asymmetric_alpha) {
+  tune_priors(document_count_histograms(corpus, state, asymmetric_alpha), state, asymmetric_alpha);
 }
 
 }  // namespace loupe

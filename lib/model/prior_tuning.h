@@ -38,4 +38,18 @@ double fit_symmetric_dirichlet(const CountHistogram& cells, const CountHistogram
 // value) and state.beta from the state's document-topic and topic-word counts.
 void tune_priors(const Corpus& corpus, SamplerState& state, bool asymmetric_alpha);
 
+// The document side of that estimate, in two steps for a fit spread over processes:
+// each process makes the histograms of its share of the documents, the shares are
+// added (add_histograms), and every process tunes from the sums.
+struct DocumentCountHistograms {
+  std::vector<CountHistogram> topic_counts;  // of n_dk: one per topic (asymmetric) or one pooled
+  CountHistogram lengths;                    // of document lengths N_d
+};
+DocumentCountHistograms document_count_histograms(const Corpus& corpus, const SamplerState& state,
+                                                  bool asymmetric_alpha);
+// Example: {(1, 2), (3, 1)} + {(1, 1), (2, 4)} -> {(1, 3), (2, 4), (3, 1)}.
+CountHistogram add_histograms(const CountHistogram& a, const CountHistogram& b);
+// alpha from the histograms (those of every document), beta from state.counts.
+void tune_priors(const DocumentCountHistograms& documents, SamplerState& state, bool asymmetric_alpha);
+
 }  // namespace loupe

@@ -118,13 +118,9 @@ std::vector<double> zipf_weights(std::uint32_t size, double exponent) {
 }
 
 Corpus corpus_subset(const Corpus& corpus, std::size_t first, std::size_t end) {
-  Corpus out;
-  out.vocabulary = corpus.vocabulary;
-  out.groups = corpus.groups;
-  out.metadata_columns = corpus.metadata_columns;
-  for (std::size_t d = first; d < end; ++d) out.add_document(corpus.documents[d], corpus.document_tokens(d));
-  recount_frequencies(out);
-  return out;
+  std::vector<std::size_t> documents;
+  for (std::size_t d = first; d < end; ++d) documents.push_back(d);
+  return corpus_of_documents(corpus, documents);
 }
 
 }  // namespace loupe

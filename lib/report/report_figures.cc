@@ -494,4 +494,90 @@ std::string graph_svg(const std::vector<GraphNode>& nodes, const std::vector<Gra
   return out + "</svg>";
 }
 
+std::string topic_count_sweep_svg(const std::vector<TopicCountPoint>& points, double suggested) {
+  struct Panel {
+    std::string name;
+    double TopicCountPoint::*value;
+    bool percent;
+  };
+  const std::vector<Panel> panels = {
+      {"held-out perplexity (lower fits better)", &TopicCountPoint::perplexity, false},
+      {"mean NPMI coherence (higher is more coherent)", &TopicCountPoint::mean_npmi, false},
+      {"redundant topic pairs", &TopicCountPoint::redundant_pairs, false},
+      {"topics stable across chains", &TopicCountPoint::stable_share, true}};
+  const double panel_width = 360, panel_height = 170, left = 56, top = 30, gap_x = 30, gap_y = 44;
+  const double width = 2 * (left + panel_width) + gap_x;
+  const double height = 2 * (top + panel_height + gap_y);
+  double k_low = 0, k_high = 1;
+  if (!points.empty()) {
+    k_low = points.front().topic_count;
+    k_high = points.front().topic_count;
+    for (const auto& p : points) {
+      k_low = std::min(k_low, p.topic_count);
+      k_high = std::max(k_high, p.topic_count);
+    }
+  }
+  if (k_high == k_low) {
+    k_low -= 1;
+    k_high += 1;
+  }
+  std::string description = "Four panels against the number of topics K (" + std::to_string(points.size()) +
+                            " values from " + format_number(k_low, 4) + " to " + format_number(k_high, 4) +
+                            "): held-out perplexity, mean NPMI coherence of the topics' top words, pairs of "
+                            "near-duplicate topics, and the share of topics that recur across chains.";
+  if (suggested > 0) description += " A dashed line marks the suggested K = " + format_number(suggested, 4) + ".";
+  std::string out = svg_open("topic-count-sweep", width, height, "Choosing the number of topics", description);
+  for (std::size_t i = 0; i < panels.size(); ++i) {
+    const Panel& panel = panels[i];
+    const double x0 = left + static_cast<double>(i % 2) * (left + panel_width + gap_x);
+    const double y0 = top + static_cast<double>(i / 2) * (top + panel_height + gap_y);
+    // The axis: 0..100% for the share, from 0 for the count of pairs, the values' range (padded) otherwise.
+    double smallest = INFINITY, largest = -INFINITY;
+    for (const auto& p : points) {
+      const double v = p.*panel.value;
+      if (!std::isfinite(v)) continue;
+      smallest = std::min(smallest, v);
+      largest = std::max(largest, v);
+    }
+    double low = 0, high = 1;
+    if (!panel.percent && std::isfinite(smallest)) {
+      const bool from_zero = panel.value == &TopicCountPoint::redundant_pairs;
+      const double pad = 0.05 * std::max(largest - smallest, 1e-9);
+      low = from_zero ? 0 : smallest - pad;
+      high = std::max(largest + pad, low + (from_zero ? 1 : 1e-6));
+    }
+    const auto x_of = [&](double k) { return x0 + panel_width * (k - k_low) / (k_high - k_low); };
+    const auto y_of = [&](double v) { return y0 + panel_height * (1 - (v - low) / (high - low)); };
+    out += text_at(x0, y0 - 10, panel.name, "font-weight=\"bold\"");
+    out += rect(x0, y0, panel_width, panel_height, "fill=\"none\" stroke=\"#999999\"");
+    const auto label = [&](double v) { return panel.percent ? format_percent(v) : format_number(v, 3); };
+    out += text_at(x0 - 4, y0 + 4, label(high), "text-anchor=\"end\" font-size=\"10\"");
+    out += text_at(x0 - 4, y0 + panel_height, label(low), "text-anchor=\"end\" font-size=\"10\"");
+    for (const auto& p : points) {
+      out += text_at(x_of(p.topic_count), y0 + panel_height + 14, format_number(p.topic_count, 4),
+                     "text-anchor=\"middle\" font-size=\"10\"");
+    }
+    out += text_at(x0 + panel_width / 2, y0 + panel_height + 28, "number of topics K", "text-anchor=\"middle\"");
+    if (suggested > 0) {
+      out += line(x_of(suggested), y0, x_of(suggested), y0 + panel_height,
+                  "class=\"suggested\" stroke=\"#D55E00\" stroke-dasharray=\"5 4\"");
+    }
+    std::string path;
+    for (const auto& p : points) {
+      const double v = p.*panel.value;
+      if (!std::isfinite(v)) continue;
+      path += (path.empty() ? "M" : " L") + px(x_of(p.topic_count)) + " " + px(y_of(v));
+    }
+    if (!path.empty()) out += "<path d=\"" + path + "\" fill=\"none\" stroke=\"#0072B2\" stroke-width=\"2\"/>";
+    for (const auto& p : points) {
+      const double v = p.*panel.value;
+      if (!std::isfinite(v)) continue;
+      out += "<circle cx=\"" + px(x_of(p.topic_count)) + "\" cy=\"" + px(y_of(v)) +
+             "\" r=\"3.5\" fill=\"#0072B2\"><title>" +
+             escape_html("K = " + format_number(p.topic_count, 4) + ": " + label(v)) + "</title></circle>";
+    }
+  }
+  return out + "</svg>";
+}
+
 }  // namespace loupe::report

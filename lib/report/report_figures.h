@@ -117,4 +117,15 @@ struct GraphEdge {
 std::string graph_svg(const std::vector<GraphNode>& nodes, const std::vector<GraphEdge>& edges, const GroupKey& groups,
                       const std::string& caption);
 
+// Choosing the number of topics: four small panels against K (held-out perplexity, mean NPMI coherence,
+// redundant topic pairs, share of stable topics), the suggested K as a dashed line (class="suggested") in each.
+struct TopicCountPoint {
+  double topic_count = 0;
+  double perplexity = 0;
+  double mean_npmi = 0;
+  double redundant_pairs = 0;
+  double stable_share = 0;  // 0..1
+};
+std::string topic_count_sweep_svg(const std::vector<TopicCountPoint>& points, double suggested);
+
 }  // namespace loupe::report

@@ -114,6 +114,18 @@ std::string range_text(const std::vector<double>& values, int digits = 3) {
   return middle + " (" + format_number(*low, digits) + " to " + format_number(*high, digits) + ")";
 }
 
+// "p <= 0.05 on 3 of 4 chains (most chains)" from a summary across chains; the chain count alone when the
+// summary states no conclusion.
+std::string conclusion_across_chains(const json& summary) {
+  const double chains = number(summary, "chains");
+  const double agreeing = number(summary, "chains_agreeing");
+  const std::string conclusion = text(summary, "conclusion");
+  const std::string count = std::isfinite(chains) ? format_number(chains) : "?";
+  if (conclusion.empty() || !std::isfinite(agreeing)) return count + (count == "1" ? " chain" : " chains");
+  return conclusion + " on " + format_number(agreeing) + " of " + count + " chains (" +
+         text(summary, "agreement", "agreement not stated") + ")";
+}
+
 std::string of_chains(std::size_t agreeing, std::size_t chains) {
   return std::to_string(agreeing) + " of " + std::to_string(chains) + (chains == 1 ? " chain" : " chains");
 }
@@ -226,6 +238,7 @@ class StudyReport {
   Section conclusions_section();
   Section corpus_section();
   Section model_section();
+  Section sweep_section();
   Section topics_section();
   Section profiles_section();
   Section tests_section();
@@ -352,13 +365,15 @@ Section StudyReport::conclusions_section() {
   s.body += paragraph(
       "What this study found, each with how many of the model's chains (independent runs of the "
       "sampler) support it. A finding that holds on all chains does not hang on one random start.");
-  s.body += "<ul class=\"conclusions\">";
+  // A table, those on all chains first (the study writes them in that order).
+  s.body += "<table class=\"conclusions\"><caption>Every conclusion and its agreement across chains</caption>" +
+            header_row({"agreement across chains", "conclusion"}) + "<tbody>";
   for (const auto& c : *member(results_, "conclusions")) {
     const std::string agreement = text(c, "agreement", "agreement not stated");
-    s.body += "<li><span class=\"agreement agreement-" + report::slug(agreement) + "\">" + escape_html(agreement) +
-              "</span> " + escape_html(text(c, "text")) + "</li>";
+    s.body += "<tr><td><span class=\"agreement agreement-" + report::slug(agreement) + "\">" + escape_html(agreement) +
+              "</span></td>" + cell(text(c, "text")) + "</tr>";
   }
-  s.body += "</ul>";
+  s.body += "</tbody></table>";
   return s;
 }
 
@@ -436,6 +451,59 @@ Section StudyReport::model_section() {
   if (!facts.empty()) s.body += key_value_table(facts, "The fit");
   const json& detail = array_of(m, "chains_detail").empty() ? array_of(m, "per_chain") : array_of(m, "chains_detail");
   if (!detail.empty()) s.body += records_table(detail, "Each chain");
+  return s;
+}
+
+// Present only when the study swept K (`loupe analyze --sweep-topics`).
+Section StudyReport::sweep_section() {
+  Section s{"sweep", "Choosing the number of topics", ""};
+  const json& sweep = *member(results_, "sweep");
+  const json& rows = array_of(sweep, "results");
+  s.body +=
+      paragraph("Before the main fit the model was fitted at " + std::to_string(rows.size()) +
+                " numbers of topics K, " + text(sweep, "chains", "?") + " chains of " + text(sweep, "sweeps", "?") +
+                " sweeps each (seed " + text(sweep, "seed", "?") + "). Every " + text(sweep, "held_out_every", "?") +
+                "th document was held out and scored by document completion (held-out perplexity: lower fits unseen "
+                "texts better); coherence (NPMI, UMass) measures how often each topic's top words share documents; "
+                "redundant pairs are topics of one chain closer than Hellinger " +
+                text(sweep, "redundancy_threshold", "?") + "; stable topics recur on the other chains.");
+  std::vector<report::TopicCountPoint> points;
+  std::string table = "<table><caption>The number of topics: each K's measures, mean over chains</caption>" +
+                      header_row({"K", "held-out perplexity (range over chains)", "mean NPMI", "mean UMass",
+                                  "redundant pairs", "stable topics", "R-hat"}) +
+                      "<tbody>";
+  const double suggested = number(sweep, "suggested");
+  for (const auto& r : rows) {
+    report::TopicCountPoint p;
+    p.topic_count = number(r, "topics");
+    p.perplexity = number(r, "perplexity");
+    p.mean_npmi = number(r, "mean_npmi");
+    p.redundant_pairs = number(r, "redundant_pairs");
+    p.stable_share = p.topic_count > 0 ? number(r, "stable_topics") / p.topic_count : kNaN;
+    points.push_back(p);
+    const bool chosen = p.topic_count == suggested;
+    table += std::string(chosen ? "<tr class=\"suggested\">" : "<tr>") +
+             cell(format_number(p.topic_count, 6) + (chosen ? " (suggested)" : ""), true) +
+             cell(format_number(p.perplexity, 4) + " (" + format_number(number(r, "perplexity_min"), 4) + " to " +
+                      format_number(number(r, "perplexity_max"), 4) + ")",
+                  true) +
+             cell(format_fixed(p.mean_npmi, 3), true) + cell(format_fixed(number(r, "mean_umass"), 2), true) +
+             cell(format_number(p.redundant_pairs, 3), true) +
+             cell(text(r, "stable_topics", "?") + " of " + format_number(p.topic_count, 6), true) +
+             cell(std::isfinite(number(r, "rhat")) ? format_fixed(number(r, "rhat"), 3) : "n/a", true) + "</tr>";
+  }
+  table += "</tbody></table>";
+  s.body += figure(report::topic_count_sweep_svg(points, suggested),
+                   "Held-out perplexity, coherence, redundant pairs and stable topics against K; the dashed line "
+                   "marks the suggested K.",
+                   table);
+  s.body +=
+      paragraph("Suggested: " + text(sweep, "reason", "no suggestion recorded") +
+                (std::isfinite(suggested) &&
+                         text(results_.value("model", json::object()), "topics") != format_number(suggested, 6)
+                     ? " The study's model uses K = " + text(results_.value("model", json::object()), "topics", "?") +
+                           ", as its options set."
+                     : ""));
   return s;
 }
 
@@ -710,10 +778,10 @@ Section StudyReport::tests_section() {
   if (compare) {
     const json& across = array_of(*compare, "across_chains");
     if (!across.empty()) {
-      s.body +=
-          "<table><caption>Group tests across chains: median (range) over the chains</caption>" +
-          header_row({"test", "comparison", "statistic", "effect size", "p-value", "adjusted p-value", "chains"}) +
-          "<tbody>";
+      s.body += "<table><caption>Group tests across chains: median (range) over the chains</caption>" +
+                header_row({"test", "comparison", "statistic", "effect size", "p-value", "adjusted p-value",
+                            "conclusion across chains"}) +
+                "<tbody>";
       // The summary across chains names no effect size; the first chain's records do.
       std::map<std::tuple<std::string, std::string, std::string>, std::string> effect_names;
       const json& chains = array_of(*compare, "chains");
@@ -731,7 +799,7 @@ Section StudyReport::tests_section() {
                   cell(text(r, "statistic_name") + " " + spread_text(member(r, "statistic"))) +
                   cell(effect_name + spread_text(member(r, "effect_size"))) +
                   cell(spread_text(member(r, "p_value")), true) +
-                  cell(spread_text(member(r, "adjusted_p_value")), true) + cell(text(r, "chains"), true) + "</tr>";
+                  cell(spread_text(member(r, "adjusted_p_value")), true) + cell(conclusion_across_chains(r)) + "</tr>";
       }
       s.body += "</tbody></table>";
     }
@@ -1343,6 +1411,7 @@ std::string StudyReport::render() {
   }
   sections.push_back(guarded("corpus", [&] { return corpus_section(); }));
   sections.push_back(guarded("model", [&] { return model_section(); }));
+  if (member(results_, "sweep")) sections.push_back(guarded("sweep", [&] { return sweep_section(); }));
   sections.push_back(guarded("topics", [&] { return topics_section(); }));
   sections.push_back(guarded("compare", [&] { return profiles_section(); }));
   sections.push_back(guarded("compare", [&] { return tests_section(); }));

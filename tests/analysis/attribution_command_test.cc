@@ -78,6 +78,9 @@ TEST(AttributeCommandTest, PrintsJudgementsCalibrationAndCautionsAndWritesJsonAn
   EXPECT_NE(run.text.find("Attributed 20 disputed documents against 3 groups over 2 chains."), std::string::npos)
       << run.text;
   EXPECT_NE(run.text.find("Calibration: each known document left out"), std::string::npos);
+  // Every verdict says how many chains back it and what that agreement is called.
+  EXPECT_NE(run.text.find("(2 of 2 chains: all chains"), std::string::npos) << run.text;
+  EXPECT_NE(run.text.find("  verdict: "), std::string::npos) << run.text;
   for (const auto caution : kAttributionCautions) {
     EXPECT_NE(run.text.find(std::string(caution)), std::string::npos) << caution;
   }

@@ -102,14 +102,50 @@ TEST(GroupComparisonTest, EveryTestOnEveryChainWithDisputedLeftOut) {
       EXPECT_GT(best, 0.3) << group << ", chain " << chain;
     }
   }
-  // Across chains: the tests without a topic, each over both chains.
+  // Across chains: every test, each over both chains, with its conclusion on both.
+  ASSERT_TRUE(comparison.topics_aligned);
   ASSERT_FALSE(comparison.summaries.empty());
   EXPECT_EQ(comparison.summaries[0].method, "PERMANOVA");
   EXPECT_EQ(comparison.summaries[0].chains, 2u);
-  for (const auto& s : comparison.summaries) EXPECT_NE(s.method, "distinctive topic");
+  EXPECT_EQ(comparison.summaries[0].significance.conclusion, "p <= 0.05");
+  EXPECT_EQ(comparison.summaries[0].significance.agreement, ChainAgreement::all);
+  // Topics are aligned to chain 1's, so each group's planted topic has one number on both chains: its
+  // distinctive-topic test is significant with a large difference on both.
+  for (const std::string group : {"harbour", "customs", "parish"}) {
+    const ChainSummary* planted = nullptr;
+    for (const auto& s : comparison.summaries) {
+      if (s.method == "distinctive topic" && s.comparison == group + " vs rest" &&
+          (planted == nullptr || s.statistic.median > planted->statistic.median)) {
+        planted = &s;
+      }
+    }
+    ASSERT_NE(planted, nullptr) << group;
+    EXPECT_EQ(planted->chains, 2u);
+    EXPECT_GT(planted->statistic.min, 0.3) << group;  // the smaller of the two chains' differences
+    EXPECT_EQ(planted->significance.conclusion, "p <= 0.05") << group;
+    EXPECT_EQ(planted->significance.backing, 2u) << group;
+  }
   const auto json = to_json(comparison);
+  EXPECT_EQ(json["across_chains"][0]["agreement"], "all chains");
+  EXPECT_EQ(json["topics_aligned"], true);
   EXPECT_EQ(json["chains"].size(), 2u);
   EXPECT_EQ(json["disputed_left_out"], 9);
+}
+
+TEST(GroupComparisonTest, WithoutAlignmentOnlyTestsWithoutATopicAreSummarised) {
+  auto options = with(0);
+  options.align_topics = false;
+  const auto comparison = compare_groups(model(), nullptr, options);
+  EXPECT_FALSE(comparison.topics_aligned);
+  ASSERT_FALSE(comparison.summaries.empty());
+  for (const auto& s : comparison.summaries) EXPECT_LT(s.topic, 0) << s.method;
+  // Chain 1 is the reference: aligning never renumbers its topics.
+  const auto aligned = compare_groups(model(), nullptr, with(0));
+  ASSERT_EQ(aligned.chains[0].records.size(), comparison.chains[0].records.size());
+  for (std::size_t i = 0; i < aligned.chains[0].records.size(); ++i) {
+    EXPECT_EQ(aligned.chains[0].records[i].topic, comparison.chains[0].records[i].topic);
+    EXPECT_EQ(aligned.chains[0].records[i].statistic, comparison.chains[0].records[i].statistic);
+  }
 }
 
 TEST(GroupComparisonTest, IncludingDisputedDocumentsCountsThem) {
@@ -155,7 +191,14 @@ TEST(GroupComparisonTest, CompareCommandEndToEnd) {
       << run.text;
   EXPECT_NE(run.text.find("permutations within strata of 'decade'"), std::string::npos) << run.text;
   EXPECT_NE(run.text.find("PERMANOVA"), std::string::npos);
-  EXPECT_NE(run.text.find("Distinctive topics, chain 1"), std::string::npos);
+  // Each conclusion with its agreement across chains; distinctive topics with the chains that find them.
+  EXPECT_NE(run.text.find("conclusion across chains"), std::string::npos) << run.text;
+  EXPECT_NE(run.text.find("p <= 0.05 in both chains"), std::string::npos) << run.text;
+  EXPECT_NE(run.text.find("Distinctive topics: more common in a group than in the rest (q <= 0.05), topics "
+                          "numbered as chain 1's"),
+            std::string::npos)
+      << run.text;
+  EXPECT_NE(run.text.find("distinctive in"), std::string::npos) << run.text;
   std::ifstream json_file(folder.file("out.json"));
   const auto json = nlohmann::json::parse(json_file);
   EXPECT_EQ(json["chains"].size(), 2u);

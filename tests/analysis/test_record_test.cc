@@ -73,6 +73,18 @@ TEST(ChainSummaryTest, MedianAndRangeAcrossChains) {
   const auto json = to_json(summary);
   EXPECT_EQ(json["statistic"]["median"], 4.5);
   EXPECT_TRUE(json["adjusted_p_value"]["median"].is_null());
+  // p = 0.01, 0.03, 0.02, 0.001: significant at 0.05 on all four chains, at 0.015 on two (split).
+  EXPECT_EQ(summary.significance.conclusion, "p <= 0.05");
+  EXPECT_EQ(summary.significance.agreement, ChainAgreement::all);
+  EXPECT_EQ(json["agreement"], "all chains");
+  EXPECT_EQ(json["chains_agreeing"], 4);
+  const auto strict = summarize_chains(records, 0.015);
+  EXPECT_EQ(strict.significance.conclusion, "p <= 0.015");  // chains 1 and 4; the tie goes to chain 1's
+  EXPECT_EQ(strict.significance.backing, 2u);
+  EXPECT_EQ(strict.significance.agreement, ChainAgreement::split);
+  const auto three_of_four = summarize_chains(records, 0.025);
+  EXPECT_EQ(three_of_four.significance.conclusion, "p <= 0.025");
+  EXPECT_EQ(three_of_four.significance.agreement, ChainAgreement::most);
 }
 
 TEST(ChainSummaryTest, GroupsByTestAndRefusesMixtures) {

@@ -36,7 +36,8 @@ constexpr double kLevel = 0.05;
 // The demo's options (proper names dropped; disputed letters in 50-token segments are analyze's default),
 // with fewer sweeps and permutations than the defaults so that the test stays short.
 const std::string kQuickOptions =
-    " --drop-proper-names --sweeps 200 --burn-in 100 --permutations 99 --bootstrap 99 --seed 7 --threads 2";
+    " --drop-proper-names --sweeps 200 --burn-in 100 --permutations 99 --bootstrap 99 --seed 7 --threads 2"
+    " --sweep-topics 4,8 --sweep-sweeps 40";
 
 nlohmann::json read_json(const std::string& path) { return nlohmann::json::parse(read_whole_file(path)); }
 
@@ -102,7 +103,16 @@ void AnalyzeCliTest::check_files_and_keys() {
   std::set<std::string> keys;
   for (const auto& [key, value] : results().items()) keys.insert(key);
   EXPECT_EQ(keys, (std::set<std::string>{"provenance", "corpus", "model", "topics", "compare", "attribution", "scan",
-                                         "graph", "near_duplicates", "conclusions"}));
+                                         "graph", "near_duplicates", "conclusions", "sweep"}));
+  // The sweep over K ran before the fit, at the K values asked for; the model keeps --topics (20).
+  const auto& sweep = results()["sweep"];
+  ASSERT_EQ(sweep["results"].size(), 2u);
+  EXPECT_EQ(sweep["results"][0]["topics"], 4);
+  EXPECT_EQ(sweep["results"][1]["topics"], 8);
+  EXPECT_EQ(sweep["chains"], 2);
+  EXPECT_EQ(sweep["sweeps"], 40);
+  EXPECT_TRUE(sweep["suggested"] == 4 || sweep["suggested"] == 8) << sweep["suggested"];
+  EXPECT_THAT(sweep["reason"].get<std::string>(), HasSubstr("not a verdict"));
   EXPECT_EQ(results()["model"]["chains"], 4);
   EXPECT_EQ(results()["model"]["topics"], 20);
   EXPECT_EQ(results()["topics"]["group_shares"].size(), 3u);
@@ -315,10 +325,14 @@ void AnalyzeCliTest::check_conclusions() {
 
 void AnalyzeCliTest::check_report() {
   const std::string report = read_whole_file(study_ + "/report.html");
-  for (const char* section : {"conclusions", "corpus", "model", "topics", "tests", "attribution", "scan", "graph",
-                              "near-duplicates", "provenance"}) {
+  for (const char* section : {"conclusions", "corpus", "model", "sweep", "topics", "tests", "attribution", "scan",
+                              "graph", "near-duplicates", "provenance"}) {
     EXPECT_THAT(report, HasSubstr("id=\"" + std::string(section) + "-heading\"")) << section;
   }
+  EXPECT_THAT(report, HasSubstr("data-figure=\"topic-count-sweep\""));
+  // The conclusions come first, as a table of each with its agreement across chains.
+  EXPECT_LT(report.find("id=\"conclusions-heading\""), report.find("id=\"corpus-heading\""));
+  EXPECT_THAT(report, HasSubstr("Every conclusion and its agreement across chains"));
   EXPECT_THAT(report, HasSubstr("dsp-02"));
 }
 
@@ -438,12 +452,24 @@ TEST(AnalyzeCliErrors, BadInputGetsAClearMessage) {
   r = run_loupe("analyze --study " + quote(folder.write("c.json", study.dump())) + " -o " + quote(folder.file("c")));
   EXPECT_EQ(r.exit_code, 1);
   EXPECT_THAT(r.output, HasSubstr("\"fit.topics\" must be a whole number"));
+  // A sweep needs two chains at least, and K values of 2 or more.
+  r = run_loupe("analyze " + quote(kManifest) + " --sweep-topics 4,8 --sweep-chains 1 -o " + quote(folder.file("e")));
+  EXPECT_EQ(r.exit_code, 1);
+  EXPECT_THAT(r.output, HasSubstr("--sweep-chains 1"));
+  EXPECT_THAT(r.output, HasSubstr("at least 2"));
+  r = run_loupe("analyze " + quote(kManifest) + " --sweep-topics 1,8 -o " + quote(folder.file("f")));
+  EXPECT_EQ(r.exit_code, 1);
+  EXPECT_THAT(r.output, HasSubstr("--sweep-topics: K = 1"));
+  r = run_loupe("analyze " + quote(kManifest) + " --sweep-topics 4,x -o " + quote(folder.file("g")));
+  EXPECT_EQ(r.exit_code, 1);
+  EXPECT_THAT(r.output, HasSubstr("--sweep-topics 4,x: 'x'"));
   // With --study the options come from the file.
   r = run_loupe("analyze --study " + quote(folder.file("c.json")) + " --topics 5 -o " + quote(folder.file("d")));
   EXPECT_EQ(r.exit_code, 1);
   EXPECT_THAT(r.output, HasSubstr("--topics: with --study the options come from the study file"));
   // Nothing was left behind by the refused runs.
-  for (const char* name : {"out", "a", "b", "c", "d"}) EXPECT_FALSE(fs::exists(folder.file(name))) << name;
+  for (const char* name : {"out", "a", "b", "c", "d", "e", "f", "g"})
+    EXPECT_FALSE(fs::exists(folder.file(name))) << name;
   for (const auto& entry : fs::directory_iterator(folder.path())) {
     EXPECT_THAT(entry.path().filename().string(), Not(HasSubstr(".loupe-")));
   }

@@ -73,6 +73,7 @@ TEST_F(ScanCliTest, FindsTheSeamOfTheStitchedDemoLetter) {
   EXPECT_THAT(r.output, HasSubstr("disputed/dsp-02"));
   EXPECT_THAT(r.output, HasSubstr("---- change point (2 of 2 chains) ----"));
   EXPECT_THAT(r.output, HasSubstr("2 of 2 chains find a change point"));
+  EXPECT_THAT(r.output, HasSubstr("Across chains: composite (a change of topics) on both chains (all chains)."));
   EXPECT_THAT(r.output, HasSubstr("Set aside"));  // the short letters have too few segments
   EXPECT_THAT(r.output, HasSubstr("statistical evidence, not proof"));
 

@@ -70,6 +70,10 @@ TEST(GraphCliTest, WritesEveryFormatAndTestsEveryChain) {
                 quote(f.file("graph.json")) + " --csv " + quote(f.file("tests.csv")));
   ASSERT_EQ(result.exit_code, 0) << result.output;
   EXPECT_NE(result.output.find("chain 1"), std::string::npos) << result.output;
+  // Both chains' profiles cluster by group (p = 0.01 on each, below): the agreement across chains says so.
+  EXPECT_NE(result.output.find("share of neighbours in the own group    above chance on both chains (all chains)"),
+            std::string::npos)
+      << result.output;
   const auto json = nlohmann::json::parse(read_whole_file(f.file("graph.json")));
   EXPECT_EQ(json["seed"], 17);
   EXPECT_EQ(json["documents"], 80);

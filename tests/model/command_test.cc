@@ -186,6 +186,17 @@ TEST(FitCommandTest, FitTopicsAndExport) {
   EXPECT_EQ(lines_of(read_whole_file(out + "/topics.csv")).size(), 1U + 2 * 4);
 }
 
+TEST(FitCommandTest, RunsFourChainsByDefaultSoThatConclusionsCanBeCheckedAcrossThem) {
+  test::TempFolder folder;
+  write_corpus(cli_corpus(40, 20), folder.file("c.corpus"));
+  const auto fit = loupe({"fit", folder.file("c.corpus"), "-o", folder.file("c.model"), "--topics", "3", "--sweeps",
+                          "20", "--burn-in", "10", "--samples", "2", "--sample-lag", "5"},
+                         folder);
+  ASSERT_EQ(fit.exit_code, 0) << fit.err;
+  EXPECT_THAT(fit.out, HasSubstr("4 chains x 20 sweeps"));
+  EXPECT_EQ(read_model(folder.file("c.model")).chains.size(), 4U);
+}
+
 TEST(FitCommandTest, BadInputIsAClearError) {
   test::TempFolder folder;
   write_corpus(cli_corpus(10, 5), folder.file("c.corpus"));
