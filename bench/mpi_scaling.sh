@@ -32,7 +32,7 @@ for setting in "exact 20" "mh 100" "mh 1000"; do
   set -- $setting
   kernel=$1
   topics=$2
-  common=(fit "$corpus" -o "$data/model" --topics "$topics" --sampler "$kernel" --sweeps "$sweeps"
+  common=(fit "$corpus" -o "$data/model" --topics "$topics" --chains 1 --sampler "$kernel" --sweeps "$sweeps"
           --burn-in $((sweeps / 2)) --samples 2 --sample-lag 5 --log-likelihood-every "$sweeps" --threads 1)
   alone=$("$loupe" "${common[@]}")
   rate=$(sed -n 's/.* sweeps in \([0-9.]*\) s, \([0-9.]*\)M tokens\/s.*/\2,\1/p' <<<"$alone")

@@ -321,6 +321,10 @@ void AnalyzeCliTest::check_conclusions() {
   EXPECT_THAT(all, HasSubstr("dsp-08 resembles none of the candidate groups"));
   EXPECT_THAT(all, HasSubstr("Documents cluster by group on the similarity graph"));
   EXPECT_THAT(all, HasSubstr("are near-copies"));
+  // Distinctive topics, summarised over the aligned chains: each office has a theme of its own in the demo.
+  for (const char* office : {"cinderholt-quay", "gannetmouth-roads", "skelloway-harbour"}) {
+    EXPECT_THAT(all, HasSubstr(std::string("is more common in ") + office)) << all;
+  }
 }
 
 void AnalyzeCliTest::check_report() {

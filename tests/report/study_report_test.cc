@@ -374,6 +374,55 @@ TEST(StudyReportTest, TopicsTableShowsStabilityAndCoherenceBesideTheWords) {
   EXPECT_EQ(count_of(html, "(unstable)"), 1u);
 }
 
+TEST(StudyReportTest, SweepOverKIsDrawnInFourPanelsWithTheSuggestedKMarked) {
+  json results = with_provenance({});
+  results["model"] = {{"topics", 12}, {"chains", 4}};
+  const auto row = [](int k, double perplexity, double npmi, double redundant, int stable) {
+    return json{{"topics", k},
+                {"perplexity", perplexity},
+                {"perplexity_min", perplexity - 1},
+                {"perplexity_max", perplexity + 1},
+                {"mean_npmi", npmi},
+                {"mean_umass", -1.5},
+                {"redundant_pairs", redundant},
+                {"stable_topics", stable},
+                {"mean_stability", 0.8},
+                {"rhat", 1.01}};
+  };
+  results["sweep"] = {
+      {"chains", 2},
+      {"sweeps", 300},
+      {"seed", 3},
+      {"held_out_every", 10},
+      {"redundancy_threshold", 0.5},
+      {"results", json::array({row(5, 300, 0.1, 0, 5), row(10, 220, 0.25, 0, 10), row(20, 210, 0.2, 3, 14)})},
+      {"suggested", 10},
+      {"reason", "K = 10: " + kHostile}};
+  const std::string html = render_study_report(results);
+  // After the model, before the topics.
+  const auto model = html.find("<section id=\"model\"");
+  const auto sweep = html.find("<section id=\"sweep\"");
+  ASSERT_NE(sweep, std::string::npos);
+  EXPECT_LT(model, sweep);
+  const std::string svg = figure_svg(html, "topic-count-sweep");
+  ASSERT_FALSE(svg.empty());
+  EXPECT_EQ(count_of(svg, "<path d="), 4u);   // one line a panel
+  EXPECT_EQ(count_of(svg, "<circle "), 12u);  // a marker a K in each
+  // The suggested K's dashed line in every panel; the first panel spans x 56..416 for K 5..20, so K = 10 is at 176.
+  const auto x = attribute_values(svg, "class=\"suggested\"", "x1");
+  ASSERT_EQ(x.size(), 4u);
+  EXPECT_NEAR(x[0], 56.0 + 360.0 * 5.0 / 15.0, 0.05);
+  EXPECT_THAT(html, HasSubstr("10 (suggested)"));
+  EXPECT_THAT(html, HasSubstr("<tr class=\"suggested\">"));
+  EXPECT_THAT(html, HasSubstr("14 of 20"));
+  EXPECT_THAT(html, HasSubstr(kHostileEscaped));  // the reason, escaped
+  EXPECT_THAT(html, Not(HasSubstr(kHostile)));
+  EXPECT_THAT(html, HasSubstr("The study&#39;s model uses K = 12"));
+  // Without a sweep there is no section and no note that one is missing.
+  results.erase("sweep");
+  EXPECT_THAT(render_study_report(results), Not(HasSubstr("<section id=\"sweep\"")));
+}
+
 TEST(StudyReportTest, GraphDrawsEveryNodeAndEdgeWithItsCommunities) {
   json nodes = json::array();
   for (int i = 0; i < 7; ++i) {
