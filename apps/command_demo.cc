@@ -61,6 +61,8 @@ void add_demo_command(CLI::App& app) {
     // with 5 no permutation p-value of a change point can fall below about 0.2.
     options.ingest.segment_words = 50;
     options.ingest.segment_disputed_only = true;
+    // The report shows how the number of topics was chosen: a sweep over K around the demo's 20.
+    options.sweep.topics = {5, 10, 15, 20, 25, 30};
     StudyRunSettings settings;
     settings.output_dir = args->output_dir;
     settings.overwrite = true;  // the demo's own folder: `make demo` runs again and again

@@ -5,6 +5,7 @@
 #include <gtest/gtest.h>
 
 #include "cli/run_command.h"
+#include "common/binary_io.h"
 #include "common/version.h"
 #include "corpus/corpus_file.h"
 #include "support/temp_folder.h"
@@ -91,6 +92,10 @@ TEST_F(IngestCliTest, DemoRunsOnTheBundledScenario) {
   EXPECT_THAT(demo.output, HasSubstr("proper name"));
   EXPECT_TRUE(fs::exists(path("study/corpus.loupe")));
   EXPECT_TRUE(fs::exists(path("study/ingest-summary.json")));
+  // The demo's report shows the sweep over K that guides the choice of its 20 topics.
+  const std::string report = read_whole_file(path("study/report.html"));
+  EXPECT_THAT(report, HasSubstr("data-figure=\"topic-count-sweep\""));
+  EXPECT_THAT(report, HasSubstr("Suggested: K = "));
 }
 
 }  // namespace
