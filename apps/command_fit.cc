@@ -6,6 +6,7 @@
 #include <csignal>
 #include <cstdio>
 #include <filesystem>
+#include <functional>
 #include <iostream>
 #include <memory>
 #include <sstream>
@@ -109,6 +110,16 @@ void take_options_from_checkpoint(const CLI::App& cmd, FitArguments& args) {
   if (unset("--checkpoint")) o.checkpoint_path = args.resume;
 }
 
+// The fit's progress on BAR: the sweep, tokens a second and log p(w,z) a token of a corpus of TOKENS tokens.
+std::function<void(const FitProgress&)> progress_on(ProgressBar& bar, double tokens) {
+  return [&bar, tokens](const FitProgress& p) {
+    std::string detail = "sweep " + std::to_string(p.sweep) + "/" + std::to_string(p.sweeps) + ", " +
+                         millions(p.tokens_per_second) + " tokens/s";
+    if (std::isfinite(p.log_likelihood)) detail += ", log p(w,z)/token " + fixed(p.log_likelihood / tokens, 4);
+    bar.update(p.sweep, p.sweeps, detail);
+  };
+}
+
 // Under mpirun: every process reads its share of the documents and samples it;
 // the counts are summed after every sweep; process 1 (rank 0) writes the model.
 void run_shared_fit(FitArguments& args, ProcessGroup& group) {
@@ -130,12 +141,7 @@ void run_shared_fit(FitArguments& args, ProcessGroup& group) {
   ProgressBar bar("fitting", args.quiet || !main_process);
   FitControl control;
   control.stop_requested = &g_stop_requested;
-  control.on_progress = [&](const FitProgress& p) {
-    std::string detail = "sweep " + std::to_string(p.sweep) + "/" + std::to_string(p.sweeps) + ", " +
-                         millions(p.tokens_per_second) + " tokens/s";
-    if (std::isfinite(p.log_likelihood)) detail += ", log p(w,z)/token " + fixed(p.log_likelihood / tokens, 4);
-    bar.update(p.sweep, p.sweeps, detail);
-  };
+  control.on_progress = progress_on(bar, tokens);
   Model model;
   {
     InterruptGuard guard;
@@ -203,12 +209,7 @@ void run_fit(const CLI::App& cmd, FitArguments& args) {
   FitControl control;
   control.resume_from = args.resume;
   control.stop_requested = &g_stop_requested;
-  control.on_progress = [&](const FitProgress& p) {
-    std::string detail = "sweep " + std::to_string(p.sweep) + "/" + std::to_string(p.sweeps) + ", " +
-                         millions(p.tokens_per_second) + " tokens/s";
-    if (std::isfinite(p.log_likelihood)) detail += ", log p(w,z)/token " + fixed(p.log_likelihood / tokens, 4);
-    bar.update(p.sweep, p.sweeps, detail);
-  };
+  control.on_progress = progress_on(bar, tokens);
   Model model;
   {
     InterruptGuard guard;

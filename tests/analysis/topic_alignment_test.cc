@@ -12,6 +12,7 @@
 #include <random>
 
 #include "analysis/assignment.h"
+#include "analysis/twenty_topic_corpus.h"
 #include "common/error.h"
 #include "model/fit.h"
 #include "model/synthetic_corpus.h"
@@ -104,18 +105,6 @@ TEST(TopicAlignmentTest, DuplicatedTopicsAreRedundant) {
   EXPECT_NEAR(pairs[0].hellinger, 0.0, 1e-3);
 }
 
-SyntheticCorpus twenty_topics() {
-  SyntheticCorpusSpec spec;
-  spec.topic_count = 20;
-  spec.vocabulary_size = 600;
-  spec.num_documents = 1000;
-  spec.document_length = 200;
-  spec.alpha = 0.1;
-  spec.topic_word_prior = 0.05;
-  spec.seed = 20;
-  return draw_lda_corpus(spec);
-}
-
 Model fit_chains(const Corpus& corpus, std::uint32_t k, std::uint32_t chains) {
   FitOptions options;
   options.topic_count = k;
@@ -132,7 +121,7 @@ Model fit_chains(const Corpus& corpus, std::uint32_t k, std::uint32_t chains) {
 // sanitizer run skips it: four fits are too slow there.
 TEST(TopicAlignmentReferenceTest, EveryTrueTopicIsStableOnADrawnCorpus) {
   // Known truth: 20 topics drawn from the LDA generative process (synthetic_corpus.h).
-  const auto drawn = twenty_topics();
+  const auto drawn = testing::twenty_topic_corpus();
   const Model model = fit_chains(drawn.corpus, 20, 3);
   const auto alignment = align_chains(model);
   // Match the true topics to the reference chain's by Hellinger distance.

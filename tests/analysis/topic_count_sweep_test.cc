@@ -11,6 +11,7 @@
 #include <string>
 #include <vector>
 
+#include "analysis/twenty_topic_corpus.h"
 #include "common/error.h"
 #include "model/synthetic_corpus.h"
 
@@ -187,15 +188,7 @@ TEST(TopicCountSweepTest, ASmallSweepMeasuresEveryKAndRecordsItsSettings) {
 // Known truth: a corpus drawn with 20 topics (model/synthetic_corpus.h), the same drawing as the topic
 // alignment reference check. Named *Reference* so the sanitizer run skips it: 16 fits are slow there.
 TEST(TopicCountSweepReferenceTest, SuggestsAKNearTheTrueTwentyAndFlagsSplitTopicsAtForty) {
-  SyntheticCorpusSpec spec;
-  spec.topic_count = 20;
-  spec.vocabulary_size = 600;
-  spec.num_documents = 1000;
-  spec.document_length = 200;
-  spec.alpha = 0.1;
-  spec.topic_word_prior = 0.05;
-  spec.seed = 20;
-  const SyntheticCorpus drawn = draw_lda_corpus(spec);
+  const SyntheticCorpus drawn = testing::twenty_topic_corpus();
   TopicCountSweepOptions options;
   options.topic_counts = parse_topic_counts("5:40:5");
   options.fit.chains = 2;
