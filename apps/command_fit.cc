@@ -3,7 +3,6 @@
 // sweep; the last checkpoint stays intact for --resume.
 #include <atomic>
 #include <cmath>
-#include <csignal>
 #include <cstdio>
 #include <filesystem>
 #include <functional>
@@ -13,6 +12,7 @@
 #include <thread>
 
 #include "apps/commands.h"
+#include "apps/interrupt_guard.h"
 #include "apps/mpi_session.h"
 #include "apps/progress_bar.h"
 #include "common/error.h"
@@ -27,28 +27,6 @@
 namespace loupe::cli {
 
 namespace {
-
-std::atomic<bool> g_stop_requested{false};
-
-extern "C" void request_stop(int) {
-  g_stop_requested.store(true);
-  std::signal(SIGINT, SIG_DFL);  // a second Ctrl-C ends the program at once
-}
-
-// Restores the previous SIGINT handler when the fit ends, however it ends.
-class InterruptGuard {
- public:
-  InterruptGuard() {
-    g_stop_requested.store(false);
-    previous_ = std::signal(SIGINT, request_stop);
-  }
-  ~InterruptGuard() { std::signal(SIGINT, previous_); }
-  InterruptGuard(const InterruptGuard&) = delete;
-  InterruptGuard& operator=(const InterruptGuard&) = delete;
-
- private:
-  void (*previous_)(int);
-};
 
 struct FitArguments {
   std::string corpus;
@@ -140,7 +118,7 @@ void run_shared_fit(FitArguments& args, ProcessGroup& group) {
   const double tokens = static_cast<double>(share.total_tokens);
   ProgressBar bar("fitting", args.quiet || !main_process);
   FitControl control;
-  control.stop_requested = &g_stop_requested;
+  control.stop_requested = &InterruptGuard::stop_requested();
   control.on_progress = progress_on(bar, tokens);
   Model model;
   {
@@ -208,7 +186,7 @@ void run_fit(const CLI::App& cmd, FitArguments& args) {
   ProgressBar bar("fitting", args.quiet);
   FitControl control;
   control.resume_from = args.resume;
-  control.stop_requested = &g_stop_requested;
+  control.stop_requested = &InterruptGuard::stop_requested();
   control.on_progress = progress_on(bar, tokens);
   Model model;
   {

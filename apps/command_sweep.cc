@@ -10,10 +10,12 @@
 
 #include "analysis/topic_count_sweep.h"
 #include "apps/commands.h"
+#include "apps/interrupt_guard.h"
 #include "apps/progress_bar.h"
 #include "common/binary_io.h"
 #include "common/error.h"
 #include "corpus/corpus_file.h"
+#include "model/fit.h"
 
 namespace loupe::cli {
 
@@ -84,6 +86,7 @@ void print_csv(const TopicCountSweep& sweep, std::ostream& out) {
 }
 
 void run_sweep(const CLI::App& cmd, SweepArguments& args) {
+  const InterruptGuard guard;  // Ctrl-C from here on stops the fits after their current sweep
   TopicCountSweepOptions options = args.options;
   // Unless given: burn-in the first 40% of the sweeps, and the samples spread over the rest.
   if (cmd.count("--burn-in") == 0) options.fit.burn_in = options.fit.sweeps * 2 / 5;
@@ -104,7 +107,13 @@ void run_sweep(const CLI::App& cmd, SweepArguments& args) {
   options.on_progress = [&](std::size_t done, std::size_t total, double work) {
     bar.update(work, 1.0, std::to_string(done) + " of " + std::to_string(total) + " K values done");
   };
-  const TopicCountSweep sweep = sweep_topic_counts(corpus, options);
+  options.stop_requested = &InterruptGuard::stop_requested();
+  TopicCountSweep sweep;
+  try {
+    sweep = sweep_topic_counts(corpus, options);
+  } catch (const FitInterrupted&) {
+    throw Error("the sweep was interrupted; nothing was written. Run it again to finish.");
+  }
   bar.finish();
 
   nlohmann::json json = to_json(sweep);

@@ -10,7 +10,6 @@
 #include <cerrno>
 #include <chrono>
 #include <cmath>
-#include <csignal>
 #include <cstdio>
 #include <ctime>
 #include <filesystem>
@@ -26,6 +25,7 @@
 #include "analysis/topic_alignment.h"
 #include "analysis/topic_coherence.h"
 #include "analysis/topic_count_sweep.h"
+#include "apps/interrupt_guard.h"
 #include "apps/progress_bar.h"
 #include "common/binary_io.h"
 #include "common/checksum.h"
@@ -495,28 +495,6 @@ TopicCountSweepOptions resolved_sweep(const StudyOptions& o, std::size_t threads
 
 namespace {
 
-std::atomic<bool> g_interrupted{false};
-
-extern "C" void request_study_stop(int) {
-  g_interrupted.store(true);
-  std::signal(SIGINT, SIG_DFL);  // a second Ctrl-C ends the program at once
-}
-
-// Ctrl-C stops the study between stages (the fit after its current sweep); nothing is left behind.
-class InterruptHandler {
- public:
-  InterruptHandler() {
-    g_interrupted.store(false);
-    previous_ = std::signal(SIGINT, request_study_stop);
-  }
-  ~InterruptHandler() { std::signal(SIGINT, previous_); }
-  InterruptHandler(const InterruptHandler&) = delete;
-  InterruptHandler& operator=(const InterruptHandler&) = delete;
-
- private:
-  void (*previous_)(int);
-};
-
 std::string utc_now() {
   const std::time_t now = std::chrono::system_clock::to_time_t(std::chrono::system_clock::now());
   std::tm parts{};
@@ -704,7 +682,8 @@ class StageProgress {
   void finish() {
     if (bar_) bar_->finish();
     bar_.reset();
-    if (g_interrupted.load()) throw Error("interrupted: the study was stopped and nothing was written.");
+    if (InterruptGuard::stop_requested().load())
+      throw Error("interrupted: the study was stopped and nothing was written.");
   }
 
  private:
@@ -1187,7 +1166,7 @@ StudyOutcome run_study(const StudyOptions& options, const StudyRunSettings& sett
   // Listing the sources first checks them (every problem named with its file and line) before any work.
   const SourceListing listing = list_sources(options.source, ingest.sources);
   StudyFolder folder(settings.output_dir, settings.overwrite);
-  InterruptHandler interrupt;
+  InterruptGuard interrupt;  // Ctrl-C stops the study between stages (a fit after its sweep); nothing is left behind
   StageProgress stages(options.sweep.topics.empty() ? 8 : 9, settings.quiet);
   StudyOutcome outcome;
   outcome.output_dir = settings.output_dir;
@@ -1220,10 +1199,14 @@ StudyOutcome run_study(const StudyOptions& options, const StudyRunSettings& sett
     sweep_options.on_progress = [&](std::size_t done, std::size_t total, double work) {
       bar->update(work, 1.0, std::to_string(done) + " of " + std::to_string(total) + " K values");
     };
-    const TopicCountSweep sweep = sweep_topic_counts(corpus, sweep_options);
-    stages.finish();
-    if (g_interrupted.load())
+    sweep_options.stop_requested = &InterruptGuard::stop_requested();
+    TopicCountSweep sweep;
+    try {
+      sweep = sweep_topic_counts(corpus, sweep_options);
+    } catch (const FitInterrupted&) {
       throw Error("interrupted: the study was stopped while sweeping K and nothing was written.");
+    }
+    stages.finish();
     results["sweep"] = to_json(sweep);
     stage_seconds["sweep"] = watch.seconds();
   }
@@ -1239,7 +1222,7 @@ StudyOutcome run_study(const StudyOptions& options, const StudyRunSettings& sett
   }
   bar = &stages.start("fitting");
   FitControl control;
-  control.stop_requested = &g_interrupted;
+  control.stop_requested = &InterruptGuard::stop_requested();
   control.on_progress = [&](const FitProgress& p) {
     bar->update(p.sweep, p.sweeps, "sweep " + std::to_string(p.sweep) + "/" + std::to_string(p.sweeps));
   };

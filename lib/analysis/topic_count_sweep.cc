@@ -139,6 +139,7 @@ TopicCountSweep sweep_topic_counts(const Corpus& corpus, const TopicCountSweepOp
   TopicCountSweep sweep;
   sweep.options = options;
   sweep.options.on_progress = nullptr;
+  sweep.options.stop_requested = nullptr;
   sweep.options.topic_counts = counts;
   sweep.training_documents = training.num_documents();
   sweep.held_out_documents = held_out.num_documents();
@@ -165,6 +166,7 @@ TopicCountSweep sweep_topic_counts(const Corpus& corpus, const TopicCountSweepOp
     FitOptions fit = options.fit;
     fit.topic_count = k;
     FitControl control;
+    control.stop_requested = options.stop_requested;
     control.on_progress = [&, index](const FitProgress& p) {
       sweeps_done[index] = p.sweep;
       report();

@@ -3,6 +3,7 @@
 // redundancy and stability across chains, then suggests a K with its reason, as a guide.
 #pragma once
 
+#include <atomic>
 #include <cstddef>
 #include <cstdint>
 #include <functional>
@@ -28,6 +29,8 @@ struct TopicCountSweepOptions {
   std::size_t parallel_fits = 1;      // K values fitted at once (never changes the results)
   // After each fit and each of its sweeps: (K values done, K values, share of all the work done, 0..1).
   std::function<void(std::size_t done, std::size_t total, double work_done)> on_progress;
+  // Set (e.g. on Ctrl-C) to stop every fit after its current sweep; the sweep then throws FitInterrupted.
+  const std::atomic<bool>* stop_requested = nullptr;
 };
 
 struct TopicCountResult {

@@ -12,11 +12,10 @@ struct CommandResult {
   std::string output;  // stdout and stderr together
 };
 
-// Runs `LOUPE_CLI ARGS` through the shell (arguments must be shell-quoted by the caller).
-inline CommandResult run_loupe(const std::string& args) {
-  const std::string command = std::string("'") + LOUPE_CLI + "' " + args + " 2>&1";
+// Runs COMMAND through the shell, stderr joined to stdout.
+inline CommandResult run_command(const std::string& command) {
   CommandResult result;
-  FILE* pipe = ::popen(command.c_str(), "r");
+  FILE* pipe = ::popen((command + " 2>&1").c_str(), "r");
   if (!pipe) return result;
   char buffer[4096];
   std::size_t n;
@@ -24,6 +23,11 @@ inline CommandResult run_loupe(const std::string& args) {
   const int status = ::pclose(pipe);
   result.exit_code = WIFEXITED(status) ? WEXITSTATUS(status) : -1;
   return result;
+}
+
+// Runs `LOUPE_CLI ARGS` through the shell (arguments must be shell-quoted by the caller).
+inline CommandResult run_loupe(const std::string& args) {
+  return run_command(std::string("'") + LOUPE_CLI + "' " + args);
 }
 
 inline std::string quote(const std::string& s) {

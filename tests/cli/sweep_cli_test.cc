@@ -84,5 +84,17 @@ TEST(SweepCliTest, BadListsAndOneChainAreClearErrors) {
   EXPECT_FALSE(std::filesystem::exists(folder.file("x.json")));
 }
 
+TEST(SweepCliTest, CtrlCStopsTheSweepAndWritesNothing) {
+  testing::TempFolder folder("sweep-cli-interrupt");
+  const auto corpus = demo_corpus(folder);
+  const auto json = folder.file("sweep.json");
+  // SIGINT after 1.5 s, well inside a sweep of 8 K values x 3000 sweeps (about a minute here).
+  const auto r = testing::run_command("timeout --preserve-status -s INT 1.5 '" + std::string(LOUPE_CLI) + "' sweep " +
+                                      quote(corpus) + " --topics 5:40:5 --sweeps 3000 -o " + quote(json));
+  EXPECT_EQ(r.exit_code, 1) << r.output;
+  EXPECT_THAT(r.output, HasSubstr("the sweep was interrupted; nothing was written"));
+  EXPECT_FALSE(std::filesystem::exists(json));
+}
+
 }  // namespace
 }  // namespace loupe
