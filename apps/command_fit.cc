@@ -16,6 +16,7 @@
 #include "apps/mpi_session.h"
 #include "apps/progress_bar.h"
 #include "common/error.h"
+#include "common/number_text.h"
 #include "common/process_group.h"
 #include "corpus/corpus_file.h"
 #include "model/checkpoint.h"
@@ -55,11 +56,7 @@ std::vector<double> parse_alpha(const std::string& text) {
   return values;
 }
 
-std::string fixed(double value, int decimals) {
-  char text[48];
-  std::snprintf(text, sizeof text, "%.*f", decimals, value);
-  return text;
-}
+std::string fixed(double value, int decimals) { return fixed_decimals(value, decimals); }
 
 std::string millions(double value) { return fixed(value / 1e6, 2) + "M"; }
 

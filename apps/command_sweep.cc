@@ -14,6 +14,7 @@
 #include "apps/progress_bar.h"
 #include "common/binary_io.h"
 #include "common/error.h"
+#include "common/number_text.h"
 #include "corpus/corpus_file.h"
 #include "model/fit.h"
 
@@ -32,13 +33,6 @@ struct SweepArguments {
   TopicCountSweepOptions options;
 };
 
-std::string fixed(double value, int digits) {
-  if (!std::isfinite(value)) return "n/a";
-  char text[32];
-  std::snprintf(text, sizeof text, "%.*f", digits, value);
-  return text;
-}
-
 void print_table(const TopicCountSweep& sweep, std::ostream& out) {
   const auto& o = sweep.options;
   out << "Number of topics: " << sweep.results.size() << " values of K, " << o.fit.chains << " chains x "
@@ -54,12 +48,13 @@ void print_table(const TopicCountSweep& sweep, std::ostream& out) {
   out << "    K  perplexity (chains' range)      NPMI    UMass  redundant  stable     R-hat\n";
   for (const auto& r : sweep.results) {
     char row[160];
-    const std::string perplexity =
-        fixed(r.perplexity, 1) + " (" + fixed(r.perplexity_min, 1) + " to " + fixed(r.perplexity_max, 1) + ")";
+    const std::string perplexity = fixed_decimals(r.perplexity, 1) + " (" + fixed_decimals(r.perplexity_min, 1) +
+                                   " to " + fixed_decimals(r.perplexity_max, 1) + ")";
     const std::string stable = std::to_string(r.stable_topics) + "/" + std::to_string(r.topic_count);
     std::snprintf(row, sizeof row, "%5u  %-30s %6s  %7s  %9s  %-7s  %6s%s\n", r.topic_count, perplexity.c_str(),
-                  fixed(r.mean_npmi, 3).c_str(), fixed(r.mean_umass, 2).c_str(), fixed(r.redundant_pairs, 1).c_str(),
-                  stable.c_str(), fixed(r.rhat, 3).c_str(), r.topic_count == sweep.suggested ? "  <- suggested" : "");
+                  fixed_decimals(r.mean_npmi, 3).c_str(), fixed_decimals(r.mean_umass, 2).c_str(),
+                  fixed_decimals(r.redundant_pairs, 1).c_str(), stable.c_str(), fixed_decimals(r.rhat, 3).c_str(),
+                  r.topic_count == sweep.suggested ? "  <- suggested" : "");
     out << row;
   }
   out << "\nSuggested: " << sweep.reason << "\n";

@@ -30,6 +30,7 @@
 #include "common/binary_io.h"
 #include "common/checksum.h"
 #include "common/error.h"
+#include "common/number_text.h"
 #include "common/version.h"
 #include "corpus/corpus_file.h"
 #include "corpus/corpus_segments.h"
@@ -512,12 +513,7 @@ std::string hex64(std::uint64_t value) {
 
 json number_or_null(double value) { return std::isfinite(value) ? json(value) : json(nullptr); }
 
-std::string fixed(double value, int decimals) {
-  if (!std::isfinite(value)) return "-";
-  char text[48];
-  std::snprintf(text, sizeof text, "%.*f", decimals, value);
-  return text;
-}
+std::string fixed(double value, int decimals) { return fixed_decimals(value, decimals, "-"); }
 
 std::string short_number(double value) {
   if (!std::isfinite(value)) return "-";

@@ -2,7 +2,6 @@
 
 #include <algorithm>
 #include <atomic>
-#include <chrono>
 #include <cmath>
 #include <cstdio>
 #include <exception>
@@ -14,6 +13,7 @@
 #include "analysis/topic_alignment.h"
 #include "analysis/topic_coherence.h"
 #include "common/error.h"
+#include "common/number_text.h"
 #include "model/evaluation.h"
 #include "model/fit.h"
 #include "model/fold_in.h"
@@ -21,12 +21,6 @@
 
 namespace loupe {
 namespace {
-
-std::string format(double value, int digits) {
-  char text[32];
-  std::snprintf(text, sizeof text, "%.*f", digits, value);
-  return text;
-}
 
 struct Split {
   std::vector<std::size_t> training, held_out;
@@ -161,7 +155,6 @@ TopicCountSweep sweep_topic_counts(const Corpus& corpus, const TopicCountSweepOp
   };
 
   const auto measure = [&](std::size_t index) {
-    const auto started = std::chrono::steady_clock::now();
     const std::uint32_t k = counts[index];
     FitOptions fit = options.fit;
     fit.topic_count = k;
@@ -215,7 +208,6 @@ TopicCountSweep sweep_topic_counts(const Corpus& corpus, const TopicCountSweepOp
     for (const double s : alignment.stability) stability += s;
     r.mean_stability = stability / static_cast<double>(k);
     r.rhat = model.rhat;
-    r.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();
     ++fits_done;
     report();
   };
@@ -276,7 +268,7 @@ void suggest_topic_count(TopicCountSweep& sweep) {
     if (above != nullptr) {
       why += "; at K = " + std::to_string(above->topic_count) + ", " +
              (above->redundant_pairs > 0
-                  ? format(above->redundant_pairs, 1) + " pairs of near-duplicate topics"
+                  ? fixed_decimals(above->redundant_pairs, 1) + " pairs of near-duplicate topics"
                   : std::to_string(above->topic_count - above->stable_topics) + " topics do not recur across chains");
     }
   } else {
@@ -290,15 +282,15 @@ void suggest_topic_count(TopicCountSweep& sweep) {
         "no K tried has topics that nearly all recur across chains (90% stable) with no near-duplicates, so "
         "among the K values whose held-out perplexity is within 5% of the lowest, the one with the most "
         "coherent topics (mean NPMI " +
-        format(chosen->mean_npmi, 3) + "; " + std::to_string(chosen->stable_topics) + " of " +
-        std::to_string(chosen->topic_count) + " topics stable, " + format(chosen->redundant_pairs, 1) +
+        fixed_decimals(chosen->mean_npmi, 3) + "; " + std::to_string(chosen->stable_topics) + " of " +
+        std::to_string(chosen->topic_count) + " topics stable, " + fixed_decimals(chosen->redundant_pairs, 1) +
         " near-duplicate pairs). More sweeps or more chains may settle the topics";
   }
   const double gap = 100.0 * (chosen->perplexity / best_perplexity - 1.0);
   why += chosen->topic_count == best_perplexity_k
-             ? "; it also has the lowest held-out perplexity (" + format(best_perplexity, 1) + ")"
-             : "; its held-out perplexity is " + format(gap, 1) + "% above the lowest (" + format(best_perplexity, 1) +
-                   " at K = " + std::to_string(best_perplexity_k) + ")";
+             ? "; it also has the lowest held-out perplexity (" + fixed_decimals(best_perplexity, 1) + ")"
+             : "; its held-out perplexity is " + fixed_decimals(gap, 1) + "% above the lowest (" +
+                   fixed_decimals(best_perplexity, 1) + " at K = " + std::to_string(best_perplexity_k) + ")";
   sweep.suggested = chosen->topic_count;
   sweep.reason = "K = " + std::to_string(chosen->topic_count) + ": " + why +
                  ". A guide, not a verdict: read the topics at the neighbouring K values too, and choose the "

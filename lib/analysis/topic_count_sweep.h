@@ -44,7 +44,6 @@ struct TopicCountResult {
   std::size_t stable_topics = 0;  // topics of chain 1 stable across the chains
   double mean_stability = 0;      // mean over chain 1's topics
   double rhat = 0;                // Gelman-Rubin of the log-likelihood traces
-  double seconds = 0;             // wall time of this K's fit and measures (not in the JSON: it varies)
 };
 
 struct TopicCountSweep {

@@ -9,6 +9,33 @@ namespace loupe {
 
 namespace {
 constexpr FileFormat kCorpusFormat{{'L', 'O', 'U', 'P', 'E', 'C', 'R', 'P'}, kCorpusFormatVersion, "corpus"};
+
+// The corpus file up to the document table, read into CORPUS (documents into DOCUMENTS), from a reader that
+// holds the payload (BinaryReader) or streams it (BinaryFileReader); PAYLOAD_SIZE bounds the document count.
+template <typename Reader>
+void read_corpus_head(Reader& in, std::uint64_t payload_size, Corpus& corpus, std::vector<Document>& documents) {
+  corpus.vocabulary = in.get_strings();
+  corpus.word_frequency = in.template get_vector<std::uint64_t>();
+  corpus.document_frequency = in.template get_vector<std::uint32_t>();
+  corpus.groups = in.get_strings();
+  corpus.metadata_columns = in.get_strings();
+  const auto num_documents = in.template get<std::uint64_t>();
+  if (num_documents > payload_size) in.fail("the document count is impossible");
+  documents.resize(num_documents);
+  for (auto& doc : documents) {
+    doc.id = in.get_string();
+    doc.group = in.template get<std::uint32_t>();
+    const auto role = in.template get<unsigned char>();
+    if (role > 1) in.fail("unknown document role " + std::to_string(role));
+    doc.role = static_cast<DocumentRole>(role);
+    doc.metadata = in.get_strings();
+    doc.parent_id = in.get_string();
+    doc.segment_index = in.template get<std::uint32_t>();
+    doc.segment_count = in.template get<std::uint32_t>();
+    doc.first_token = in.template get<std::uint64_t>();
+  }
+}
+
 }  // namespace
 
 void write_corpus(const Corpus& corpus, const std::string& path) {
@@ -40,26 +67,7 @@ Corpus read_corpus(const std::string& path) {
   const std::string payload = read_binary_file(path, kCorpusFormat, &version);
   BinaryReader in(payload, path);
   Corpus corpus;
-  corpus.vocabulary = in.get_strings();
-  corpus.word_frequency = in.get_vector<std::uint64_t>();
-  corpus.document_frequency = in.get_vector<std::uint32_t>();
-  corpus.groups = in.get_strings();
-  corpus.metadata_columns = in.get_strings();
-  const auto num_documents = in.get<std::uint64_t>();
-  if (num_documents > payload.size()) in.fail("the document count is impossible");
-  corpus.documents.resize(num_documents);
-  for (auto& doc : corpus.documents) {
-    doc.id = in.get_string();
-    doc.group = in.get<std::uint32_t>();
-    const auto role = in.get<unsigned char>();
-    if (role > 1) in.fail("unknown document role " + std::to_string(role));
-    doc.role = static_cast<DocumentRole>(role);
-    doc.metadata = in.get_strings();
-    doc.parent_id = in.get_string();
-    doc.segment_index = in.get<std::uint32_t>();
-    doc.segment_count = in.get<std::uint32_t>();
-    doc.first_token = in.get<std::uint64_t>();
-  }
+  read_corpus_head(in, payload.size(), corpus, corpus.documents);
   corpus.token_offsets = in.get_vector<std::uint64_t>();
   corpus.tokens = in.get_vector<WordId>();
   const std::string record = in.get_string();
@@ -91,26 +99,9 @@ CorpusShare read_corpus_share(const std::string& path, std::size_t rank, std::si
   BinaryFileReader in(path, kCorpusFormat);
   CorpusShare share;
   Corpus& corpus = share.corpus;
-  corpus.vocabulary = in.get_strings();
-  corpus.word_frequency = in.get_vector<std::uint64_t>();
-  corpus.document_frequency = in.get_vector<std::uint32_t>();
-  corpus.groups = in.get_strings();
-  corpus.metadata_columns = in.get_strings();
-  const auto num_documents = in.get<std::uint64_t>();
-  if (num_documents > in.payload_size()) in.fail("the document count is impossible");
-  std::vector<Document> documents(num_documents);
-  for (auto& doc : documents) {
-    doc.id = in.get_string();
-    doc.group = in.get<std::uint32_t>();
-    const auto role = in.get<unsigned char>();
-    if (role > 1) in.fail("unknown document role " + std::to_string(role));
-    doc.role = static_cast<DocumentRole>(role);
-    doc.metadata = in.get_strings();
-    doc.parent_id = in.get_string();
-    doc.segment_index = in.get<std::uint32_t>();
-    doc.segment_count = in.get<std::uint32_t>();
-    doc.first_token = in.get<std::uint64_t>();
-  }
+  std::vector<Document> documents;
+  read_corpus_head(in, in.payload_size(), corpus, documents);
+  const std::uint64_t num_documents = documents.size();
   const std::vector<std::uint64_t> offsets = in.get_vector<std::uint64_t>();
   const std::uint64_t token_count = in.get_count(sizeof(WordId));
   const std::uint64_t tokens_at = in.offset();

@@ -1,5 +1,6 @@
 #include "report/html_text.h"
 #include "common/markup_escape.h"
+#include "common/number_text.h"
 
 #include <cmath>
 #include <cstdio>
@@ -29,12 +30,7 @@ std::string format_number(double value, int significant) {
   return text;
 }
 
-std::string format_fixed(double value, int decimals) {
-  if (!std::isfinite(value)) return "\u2013";
-  char text[48];
-  std::snprintf(text, sizeof text, "%.*f", decimals, value);
-  return text;
-}
+std::string format_fixed(double value, int decimals) { return fixed_decimals(value, decimals, "\u2013"); }
 
 std::string format_percent(double share) {
   if (!std::isfinite(share)) return "\u2013";
